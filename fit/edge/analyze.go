@@ -1,0 +1,568 @@
+package edge
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/stat"
+
+	"bandedge/fit"
+	"bandedge/model"
+)
+
+// Defaults of the automatic window rule (see Options).
+const (
+	DefaultTailWidth = 6    // Urbach energies below the gap
+	DefaultAboveGap  = 0.25 // eV above the gap
+	// windowShiftTail and windowShiftAbove define the family of windows
+	// refitted for the window term of the budget: the lower end moves by
+	// ±2 Urbach energies (±0.02 eV for models without a tail) and the upper
+	// end by ±0.10 eV, in all 3×3 combinations.
+	windowShiftTail    = 2
+	windowShiftNoTail  = 0.02
+	windowShiftAbove   = 0.10
+	defaultUrbachStart = 0.015 // eV, start value when the Urbach plot fails
+	maxWindowPasses    = 4
+)
+
+// Options configures Analyze. The zero value fits the parabolic direct
+// edge with an Urbach tail over the automatic window.
+type Options struct {
+	// Model is the edge model; nil means model.DirectUrbach{}.
+	Model model.Model
+	// Window forces the fit window [lo, hi] in eV; the zero value selects
+	// the automatic rule: from TailWidth Urbach energies below the gap to
+	// AboveGap above it (for a model without a tail, from the gap itself),
+	// placed first at the Tauc gap and Urbach-plot E_U, then at the fitted
+	// values, until the set of points no longer changes (at most four
+	// passes), and always clipped to the usable points.
+	Window [2]float64
+	// TailWidth is the automatic window's extent below the gap, in Urbach
+	// energies. Default DefaultTailWidth.
+	TailWidth float64
+	// AboveGap is the automatic window's extent above the gap in eV.
+	// Default DefaultAboveGap.
+	AboveGap float64
+	// Coverage is the coverage factor k of the expanded uncertainties.
+	// Default DefaultCoverage.
+	Coverage float64
+	// WavelengthErr is the standard uncertainty of the instrument's
+	// wavelength scale in nm (0: no term).
+	WavelengthErr float64
+	// ThicknessRelErr is the relative standard uncertainty of the sample
+	// thickness (0: no term). α ∝ 1/d exactly, so it enters the amplitude
+	// and E_P but not E_g or E_U.
+	ThicknessRelErr float64
+	// Kane, when not nil, asks for the implied Kane energy E_P.
+	Kane *KaneInputs
+	// Index, when not nil, describes the refractive-index uncertainty,
+	// propagated by reconverting the spectrum and refitting.
+	Index *IndexInput
+	// NoWindowBudget skips the window-family refits (the window term is
+	// then reported as not evaluated and the combined uncertainty is NaN).
+	NoWindowBudget bool
+}
+
+// KaneInputs are the material inputs needed to turn the fitted amplitude
+// into the Kane energy E_P (see model.KaneFromAmplitude).
+type KaneInputs struct {
+	// Index is the refractive index near the edge.
+	Index float64
+	// ElectronMass and HoleMass are the effective masses in units of m₀.
+	ElectronMass, HoleMass float64
+	// MassRelErr is the relative standard uncertainty of the reduced mass
+	// (0: no term).
+	MassRelErr float64
+}
+
+// IndexInput is a refractive-index uncertainty and a way to reconvert the
+// spectrum at a perturbed index.
+type IndexInput struct {
+	// Value and Err are the index and its standard uncertainty.
+	Value, Err float64
+	// Reconvert returns the data converted with the index n.
+	Reconvert func(n float64) (Data, error)
+}
+
+// ParamValue is one fitted parameter.
+type ParamValue struct {
+	Name   string     `json:"name"`
+	Symbol string     `json:"symbol"`
+	Unit   string     `json:"unit"`
+	Value  float64    `json:"value"`
+	StdErr float64    `json:"stderr"`
+	CI95   [2]float64 `json:"ci95"`
+	// AtBound is true when the estimate ended on a parameter bound.
+	AtBound bool `json:"at_bound,omitempty"`
+}
+
+// Result is the outcome of Analyze.
+type Result struct {
+	// Model is the model's name.
+	Model string `json:"model"`
+	// Params are the fitted parameters with statistical standard errors
+	// and 95 % intervals from Student's t with DoF degrees of freedom.
+	Params []ParamValue `json:"params"`
+	// Correlation is the correlation matrix of the parameters.
+	Correlation [][]float64 `json:"correlation"`
+	// Chi2Red is the reduced χ² = SSR/DoF.
+	Chi2Red float64 `json:"chi2_reduced"`
+	// DoF is the number of degrees of freedom.
+	DoF int `json:"dof"`
+	// Points is the number of points in the window.
+	Points int `json:"points_used"`
+	// Window is the fit window in eV and WindowRule how it was chosen.
+	Window     [2]float64 `json:"window_ev"`
+	WindowRule string     `json:"window_rule"`
+	// InWindow marks the points of Data inside the window.
+	InWindow []bool `json:"-"`
+	// Converged is false when the solver stopped early; Status names how
+	// it stopped.
+	Converged bool   `json:"converged"`
+	Status    string `json:"status"`
+	// Cond is the condition number of JᵀWJ at the optimum.
+	Cond float64 `json:"condition_number"`
+	// CovScaled is true when the covariance was scaled by χ²_red.
+	CovScaled bool `json:"covariance_scaled"`
+	// Budgets holds an uncertainty budget for E_g, E_U (tail models), the
+	// amplitude and E_P (when asked), keyed "eg", "eu", "amp", "ep".
+	Budgets map[string]Budget `json:"budgets"`
+	// EP is the implied Kane energy in eV (NaN when not asked).
+	EP float64 `json:"-"`
+	// TailOnly is true when the window holds (almost) no points above the
+	// gap: E_g and the amplitude are then not determined (their budgets
+	// carry an "extrapolation" term of unknown size) and only E_U is.
+	TailOnly bool `json:"tail_only"`
+	// Tauc and Urbach are the linearised constructions used for the start
+	// values (nil when they could not be made).
+	Tauc   *Construction `json:"tauc,omitempty"`
+	Urbach *Construction `json:"urbach,omitempty"`
+	// Start is the starting parameter vector.
+	Start []float64 `json:"start"`
+	// Warnings say, in plain words, how far to trust the numbers.
+	Warnings []string `json:"warnings"`
+	// Fit is the raw solver result.
+	Fit *fit.Result `json:"-"`
+}
+
+// Param returns the fitted parameter called name.
+func (r *Result) Param(name string) (ParamValue, bool) {
+	for _, p := range r.Params {
+		if p.Name == name {
+			return p, true
+		}
+	}
+	return ParamValue{}, false
+}
+
+// ErrTooFewPoints is returned when the window holds too few points.
+var ErrTooFewPoints = errors.New("edge: too few points in the fit window")
+
+// Analyze fits the edge model to d and evaluates the uncertainty budgets.
+func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
+	if err := d.Validate(); err != nil {
+		return nil, err
+	}
+	o = o.withDefaults()
+	m := o.Model
+	ieg, iamp, ieu := model.ParamIndex(m, "eg"), model.ParamIndex(m, "amp"), model.ParamIndex(m, "eu")
+	if ieg < 0 || iamp < 0 {
+		return nil, fmt.Errorf("edge: model %s lacks an eg or amp parameter", m.Name())
+	}
+	if d.Usable() < len(m.Params())+2 {
+		return nil, fmt.Errorf("%w: %d usable points in the whole spectrum, need at least %d", ErrTooFewPoints, d.Usable(), len(m.Params())+2)
+	}
+	res := &Result{Model: m.Name(), Budgets: map[string]Budget{}, EP: math.NaN()}
+
+	start := startValues(d, m, res)
+	forced := o.Window != [2]float64{}
+	var win [2]float64
+	var in []bool
+	var fr *fit.Result
+	var err error
+	if forced {
+		win = o.Window
+		res.WindowRule = fmt.Sprintf("forced: %.4g to %.4g eV", win[0], win[1])
+		in = windowMask(d, win)
+		fr, err = fitWindow(ctx, d, m, in, start)
+	} else {
+		p := start
+		for pass := 0; pass < maxWindowPasses; pass++ {
+			w := autoWindow(m, p, o)
+			next := windowMask(d, w)
+			if in != nil && equalMask(in, next) {
+				break
+			}
+			win, in = w, next
+			fr, err = fitWindow(ctx, d, m, in, start)
+			if err != nil {
+				break
+			}
+			p = fr.Params
+		}
+		res.WindowRule = autoRule(m, o)
+	}
+	if err != nil && (fr == nil || !errors.Is(err, fit.ErrSingular)) {
+		return nil, err
+	}
+	res.Window, res.InWindow = clipWindow(d, in, win), in
+	res.Start = start
+	res.Fit = fr
+	res.fill(m, fr, d.SigmaKnown, count(in))
+	if err != nil {
+		// Singular covariance: the estimates stand but say so.
+		res.Warnings = append(res.Warnings, fmt.Sprintf("the covariance could not be computed (%v): the parameters are not determined by these data", err))
+	}
+	res.warn(d, m, ieg, ieu, iamp)
+
+	// Uncertainty budgets.
+	win0 := res.Window
+	family := windowFamily(m, fr.Params, win0, ieu)
+	var famEg, famEU, famAmp []float64
+	if !o.NoWindowBudget {
+		for _, w := range family {
+			fw, err := fitWindow(ctx, d, m, windowMask(d, w), fr.Params)
+			if err != nil || fw.Status.Early() {
+				continue
+			}
+			famEg = append(famEg, fw.Params[ieg])
+			famAmp = append(famAmp, fw.Params[iamp])
+			if ieu >= 0 {
+				famEU = append(famEU, fw.Params[ieu])
+			}
+		}
+	}
+	winTerm := func(vals []float64, unit string) Term {
+		t := Term{Source: "fit window", Type: TypeB, InputUnit: unit,
+			Note: fmt.Sprintf("standard deviation over %d refits: lower end ±%s, upper end ±%.2g eV", len(vals), shiftText(ieu), windowShiftAbove)}
+		if o.NoWindowBudget || len(vals) < 3 {
+			t.U = math.NaN()
+			t.Note = "not evaluated"
+		} else {
+			t.U = stat.StdDev(vals, nil)
+		}
+		return t
+	}
+	statTerm := func(i int, unit string) Term {
+		return Term{Source: "statistical", Type: TypeA, InputUnit: unit, U: res.Params[i].StdErr,
+			Note: res.statNote()}
+	}
+
+	egTerms := []Term{statTerm(ieg, "eV"), winTerm(famEg, "eV")}
+	if o.WavelengthErr > 0 {
+		eg := fr.Params[ieg]
+		c := eg * eg / model.HCeVnm // |dE/dλ| at the edge
+		egTerms = append(egTerms, Term{Source: "wavelength scale", Type: TypeB, Input: o.WavelengthErr, InputUnit: "nm",
+			Sensitivity: c, U: c * o.WavelengthErr, Note: "|dE/dλ| = E_g²/(hc) at the edge"})
+	}
+	var idx []float64 // E_g, amp refitted at n ± u_n
+	if o.Index != nil && o.Index.Err > 0 && o.Index.Reconvert != nil {
+		idx = indexSensitivity(ctx, o.Index, m, res.Window, fr.Params, ieg, iamp)
+		if idx != nil {
+			c := idx[0]
+			egTerms = append(egTerms, Term{Source: "refractive index", Type: TypeB, Input: o.Index.Err, InputUnit: "1",
+				Sensitivity: c, U: math.Abs(c) * o.Index.Err, Note: "refit of the spectrum reconverted at n ± u(n)"})
+		}
+	}
+	if res.TailOnly {
+		egTerms = append(egTerms, extrapolationTerm("eV"))
+	}
+	res.Budgets["eg"] = NewBudget("E_g", "eV", o.Coverage, egTerms...)
+	if ieu >= 0 {
+		res.Budgets["eu"] = NewBudget("E_U", "eV", o.Coverage, statTerm(ieu, "eV"), winTerm(famEU, "eV"))
+	}
+	amp := fr.Params[iamp]
+	ampUnit := m.Params()[iamp].Unit
+	ampTerms := []Term{statTerm(iamp, ampUnit), winTerm(famAmp, ampUnit)}
+	if o.ThicknessRelErr > 0 {
+		ampTerms = append(ampTerms, Term{Source: "thickness", Type: TypeB, Input: o.ThicknessRelErr, InputUnit: "relative",
+			Sensitivity: amp, U: amp * o.ThicknessRelErr, Note: "α ∝ 1/d, so u(C)/C = u(d)/d"})
+	}
+	if idx != nil {
+		ampTerms = append(ampTerms, Term{Source: "refractive index", Type: TypeB, Input: o.Index.Err, InputUnit: "1",
+			Sensitivity: idx[1], U: math.Abs(idx[1]) * o.Index.Err, Note: "refit of the spectrum reconverted at n ± u(n)"})
+	}
+	if res.TailOnly {
+		ampTerms = append(ampTerms, extrapolationTerm(ampUnit))
+	}
+	res.Budgets["amp"] = NewBudget(m.Params()[iamp].Symbol, ampUnit, o.Coverage, ampTerms...)
+	if o.Kane != nil {
+		res.kane(o, m, iamp)
+	}
+	res.budgetWarnings()
+	return res, nil
+}
+
+func (o Options) withDefaults() Options {
+	if o.Model == nil {
+		o.Model = model.DirectUrbach{}
+	}
+	if !(o.TailWidth > 0) {
+		o.TailWidth = DefaultTailWidth
+	}
+	if !(o.AboveGap > 0) {
+		o.AboveGap = DefaultAboveGap
+	}
+	if !(o.Coverage > 0) {
+		o.Coverage = DefaultCoverage
+	}
+	return o
+}
+
+// startValues derives the start vector from the data: E_g from the direct
+// Tauc construction, E_U from the Urbach plot, the amplitude from a linear
+// least-squares solve with the others fixed, every value clamped into the
+// model's bounds.
+func startValues(d Data, m model.Model, res *Result) []float64 {
+	ps := m.Params()
+	p := make([]float64, len(ps))
+	for i, q := range ps {
+		p[i] = midpoint(q)
+	}
+	ieg, iamp, ieu := model.ParamIndex(m, "eg"), model.ParamIndex(m, "amp"), model.ParamIndex(m, "eu")
+	gap := math.NaN()
+	if t, err := Tauc(d, 0.5); err == nil && isFinite(t.Value) {
+		res.Tauc = &t
+		gap = t.Value
+	}
+	if u, err := Urbach(d, gap); err == nil {
+		res.Urbach = &u
+		if ieu >= 0 {
+			p[ieu] = u.Value
+		}
+	} else if ieu >= 0 {
+		p[ieu] = defaultUrbachStart
+	}
+	if math.IsNaN(gap) {
+		// No Tauc line: put the gap where α reaches half its largest
+		// usable value, a crude but data-driven start.
+		gap = halfRise(d)
+	}
+	p[ieg] = gap
+	for i, q := range ps {
+		p[i] = math.Min(math.Max(p[i], q.Min), q.Max)
+	}
+	// Amplitude by weighted linear least squares: α ≈ C·f(E; C = 1).
+	p[iamp] = 1
+	f := make([]float64, len(d.E))
+	m.Eval(f, d.E, p)
+	var num, den float64
+	for i := range d.E {
+		if !d.usable(i) {
+			continue
+		}
+		w := 1 / (d.Sigma[i] * d.Sigma[i])
+		num += w * f[i] * d.Alpha[i]
+		den += w * f[i] * f[i]
+	}
+	if den > 0 && num > 0 {
+		p[iamp] = num / den
+	}
+	p[iamp] = math.Min(math.Max(p[iamp], ps[iamp].Min), ps[iamp].Max)
+	return p
+}
+
+func midpoint(q model.Param) float64 {
+	switch {
+	case !math.IsInf(q.Min, 0) && !math.IsInf(q.Max, 0):
+		return 0.5 * (q.Min + q.Max)
+	case !math.IsInf(q.Min, 0):
+		return q.Min + 1
+	case !math.IsInf(q.Max, 0):
+		return q.Max - 1
+	}
+	return 0
+}
+
+// halfRise returns the lowest energy at which α reaches half its 95th
+// percentile over the usable points.
+func halfRise(d Data) float64 {
+	var a []float64
+	for i := range d.E {
+		if d.usable(i) {
+			a = append(a, d.Alpha[i])
+		}
+	}
+	ref := quantile(a, 0.95) / 2
+	for i := range d.E {
+		if d.usable(i) && d.Alpha[i] >= ref {
+			return d.E[i]
+		}
+	}
+	return d.E[len(d.E)/2]
+}
+
+func autoWindow(m model.Model, p []float64, o Options) [2]float64 {
+	eg := p[model.ParamIndex(m, "eg")]
+	lo := eg
+	if ieu := model.ParamIndex(m, "eu"); ieu >= 0 {
+		lo = eg - o.TailWidth*p[ieu]
+	}
+	return [2]float64{lo, eg + o.AboveGap}
+}
+
+func autoRule(m model.Model, o Options) string {
+	if model.ParamIndex(m, "eu") >= 0 {
+		return fmt.Sprintf("automatic: E_g − %g·E_U to E_g + %g eV, iterated to a fixed point", o.TailWidth, o.AboveGap)
+	}
+	return fmt.Sprintf("automatic: E_g to E_g + %g eV, iterated to a fixed point", o.AboveGap)
+}
+
+func windowMask(d Data, w [2]float64) []bool {
+	in := make([]bool, len(d.E))
+	for i, e := range d.E {
+		in[i] = d.usable(i) && e >= w[0] && e <= w[1]
+	}
+	return in
+}
+
+// clipWindow reports the window as the energies of the first and last
+// point inside it (the nominal limits may lie beyond the data).
+func clipWindow(d Data, in []bool, w [2]float64) [2]float64 {
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for i, ok := range in {
+		if ok {
+			lo = math.Min(lo, d.E[i])
+			hi = math.Max(hi, d.E[i])
+		}
+	}
+	if lo > hi {
+		return w
+	}
+	return [2]float64{lo, hi}
+}
+
+func equalMask(a, b []bool) bool {
+	for i := range a {
+		if a[i] != b[i] {
+			return false
+		}
+	}
+	return true
+}
+
+func count(in []bool) int {
+	n := 0
+	for _, ok := range in {
+		if ok {
+			n++
+		}
+	}
+	return n
+}
+
+// fitWindow fits m to the points of d marked in in.
+func fitWindow(ctx context.Context, d Data, m model.Model, in []bool, start []float64) (*fit.Result, error) {
+	n := count(in)
+	if n < len(start)+2 {
+		return nil, fmt.Errorf("%w: %d points, need at least %d", ErrTooFewPoints, n, len(start)+2)
+	}
+	e := make([]float64, 0, n)
+	a := make([]float64, 0, n)
+	w := make([]float64, 0, n)
+	for i, ok := range in {
+		if ok {
+			e = append(e, d.E[i])
+			a = append(a, d.Alpha[i])
+			w = append(w, 1/(d.Sigma[i]*d.Sigma[i]))
+		}
+	}
+	return fit.Fit(ctx, fit.Problem{E: e, Alpha: a, Weights: w, Model: m, Init: start},
+		&fit.Settings{AbsoluteSigma: d.SigmaKnown})
+}
+
+func (r *Result) fill(m model.Model, fr *fit.Result, sigmaKnown bool, n int) {
+	ci := fr.ConfInt(0.95)
+	for i, q := range m.Params() {
+		pv := ParamValue{Name: q.Name, Symbol: q.Symbol, Unit: q.Unit, Value: fr.Params[i], StdErr: fr.StdErr[i], CI95: ci[i]}
+		if fr.AtBound != nil {
+			pv.AtBound = fr.AtBound[i]
+		}
+		r.Params = append(r.Params, pv)
+	}
+	if c := fr.Correlation(); c != nil {
+		r.Correlation = denseRows(c)
+	}
+	r.DoF = fr.DoF
+	r.Chi2Red = fr.SSR / float64(fr.DoF)
+	r.Points = n
+	r.Converged = !fr.Status.Early()
+	r.Status = fr.Status.String()
+	r.Cond = fr.Cond
+	r.CovScaled = !sigmaKnown
+}
+
+func denseRows(c *mat.SymDense) [][]float64 {
+	n := c.SymmetricDim()
+	rows := make([][]float64, n)
+	for i := range rows {
+		rows[i] = make([]float64, n)
+		for j := range rows[i] {
+			rows[i][j] = c.At(i, j)
+		}
+	}
+	return rows
+}
+
+func (r *Result) statNote() string {
+	if r.CovScaled {
+		return "least-squares standard error, covariance scaled by χ²_red"
+	}
+	return "least-squares standard error, absolute weights"
+}
+
+// windowFamily returns the eight windows around w used for the window
+// term: the lower end moved by −s, 0, +s and the upper end by −0.10, 0,
+// +0.10 eV, without the nominal window itself.
+func windowFamily(m model.Model, p []float64, w [2]float64, ieu int) [][2]float64 {
+	s := windowShiftNoTail
+	if ieu >= 0 {
+		s = windowShiftTail * p[ieu]
+	}
+	var fam [][2]float64
+	for _, dl := range []float64{-s, 0, s} {
+		for _, dh := range []float64{-windowShiftAbove, 0, windowShiftAbove} {
+			if dl == 0 && dh == 0 {
+				continue
+			}
+			fam = append(fam, [2]float64{w[0] + dl, w[1] + dh})
+		}
+	}
+	return fam
+}
+
+func shiftText(ieu int) string {
+	if ieu >= 0 {
+		return fmt.Sprintf("%g·E_U", float64(windowShiftTail))
+	}
+	return fmt.Sprintf("%.2g eV", windowShiftNoTail)
+}
+
+// extrapolationTerm is the budget line of a quantity the data do not
+// determine: its size is unknown, so the combined uncertainty is too.
+func extrapolationTerm(unit string) Term {
+	return Term{Source: "extrapolation", Type: TypeB, Input: math.NaN(), InputUnit: unit, Sensitivity: 1, U: math.NaN(),
+		Note: "not determined: the data show only the tail below the gap"}
+}
+
+// indexSensitivity refits at n ± u(n) and returns the central-difference
+// sensitivities [∂E_g/∂n, ∂C/∂n], or nil when a refit fails.
+func indexSensitivity(ctx context.Context, ix *IndexInput, m model.Model, w [2]float64, p []float64, ieg, iamp int) []float64 {
+	var v [2][]float64
+	for k, sgn := range []float64{-1, 1} {
+		d, err := ix.Reconvert(ix.Value + sgn*ix.Err)
+		if err != nil {
+			return nil
+		}
+		fr, err := fitWindow(ctx, d, m, windowMask(d, w), p)
+		if fr == nil || (err != nil && !errors.Is(err, fit.ErrSingular)) {
+			return nil
+		}
+		v[k] = fr.Params
+	}
+	h := 2 * ix.Err
+	return []float64{(v[1][ieg] - v[0][ieg]) / h, (v[1][iamp] - v[0][iamp]) / h}
+}

@@ -1,0 +1,238 @@
+package edge
+
+import (
+	"fmt"
+	"math"
+)
+
+// Construction is the result of a linearised construction: a Tauc, Cody
+// or Urbach plot with its automatically chosen linear range.
+type Construction struct {
+	// Name identifies the construction, e.g. "tauc-direct-allowed".
+	Name string `json:"name"`
+	// Exponent is Tauc's r (the plot is (αE)^(1/r) against E); 0 for the
+	// Cody and Urbach plots.
+	Exponent float64 `json:"exponent,omitempty"`
+	// Value is the gap (eV) for Tauc and Cody plots, or the Urbach energy
+	// (eV) for the Urbach plot; Err is its standard uncertainty from the
+	// line fit (statistical only).
+	Value float64 `json:"value_ev"`
+	Err   float64 `json:"err_ev"`
+	// Range is the energy range of the linear part (eV).
+	Range [2]float64 `json:"range_ev"`
+	// Points is the number of points in the linear part.
+	Points int `json:"points"`
+	// Chi2Red is the reduced χ² about the line.
+	Chi2Red float64 `json:"chi2_reduced"`
+	// Line is the fitted line in the plot's own coordinates.
+	Line Line `json:"-"`
+	// X, Y, Sigma are the plotted points (all usable points, not only the
+	// linear part), for reports.
+	X, Y, Sigma []float64 `json:"-"`
+}
+
+// growTol is the acceptance threshold, in standard deviations, of GrowLine
+// as used by the constructions.
+const growTol = 3
+
+// Tauc fits the Tauc construction (Tauc, Grigorovici & Vancu, phys. stat.
+// sol. 15, 627, 1966)
+//
+//	(α·E)^(1/r) = B·(E − E_g)
+//
+// with r = 1/2 (direct allowed), 3/2 (direct forbidden), 2 (indirect
+// allowed) or 3 (indirect forbidden). Only points with α > 0 enter.
+//
+// Linear range rule: u_ref is the 95th percentile of u = (αE)^(1/r); the
+// seed is the run of points from the first with u ≥ 0.2·u_ref up to the
+// last before u first exceeds 0.6·u_ref (widened to MinLinearPoints); it
+// then grows by GrowLine with a 3σ threshold. E_g is the root of the line.
+func Tauc(d Data, r float64) (Construction, error) {
+	name := taucName(r)
+	if !(r > 0) {
+		return Construction{}, fmt.Errorf("tauc: exponent r = %g: %w", r, ErrNoLinearRange)
+	}
+	p := 1 / r
+	tr := func(e, a, s float64) (y, sy float64, ok bool) {
+		if !(a > 0) {
+			return 0, 0, false
+		}
+		y = math.Pow(a*e, p)
+		return y, p * y / a * s, true
+	}
+	c, err := edgeConstruction(d, name, tr, 0.2, 0.6)
+	if err != nil {
+		return c, err
+	}
+	c.Exponent = r
+	c.Value, c.Err = c.Line.Root(0)
+	return c, nil
+}
+
+// Cody fits the Cody construction (Cody et al., Phys. Rev. Lett. 47, 1480,
+// 1981)
+//
+//	(α/E)^(1/2) = B·(E − E_g)
+//
+// with the same linear range rule as Tauc.
+func Cody(d Data) (Construction, error) {
+	tr := func(e, a, s float64) (y, sy float64, ok bool) {
+		if !(a > 0) {
+			return 0, 0, false
+		}
+		y = math.Sqrt(a / e)
+		return y, 0.5 * y / a * s, true
+	}
+	c, err := edgeConstruction(d, "cody", tr, 0.2, 0.6)
+	if err != nil {
+		return c, err
+	}
+	c.Value, c.Err = c.Line.Root(0)
+	return c, nil
+}
+
+// Urbach fits the Urbach plot (Urbach, Phys. Rev. 92, 1324, 1953)
+//
+//	ln α = ln α₀ + (E − E₀)/E_U
+//
+// to points with α > 3σ_α (so that ln α is near-Gaussian) below gapHint
+// (eV; NaN for none). Linear range rule: α_ref is α interpolated at gapHint,
+// or the largest usable α when there is no hint; the seed is the run of
+// points with α between α_ref/20 and α_ref/2, grown by GrowLine with a 3σ
+// threshold but never past gapHint. E_U is the inverse slope.
+func Urbach(d Data, gapHint float64) (Construction, error) {
+	var x, y, s []float64
+	for i := range d.E {
+		if !d.usable(i) || !(d.Alpha[i] > 3*d.Sigma[i]) {
+			continue
+		}
+		if !math.IsNaN(gapHint) && d.E[i] > gapHint {
+			continue
+		}
+		x = append(x, d.E[i])
+		y = append(y, math.Log(d.Alpha[i]))
+		s = append(s, d.Sigma[i]/d.Alpha[i])
+	}
+	c := Construction{Name: "urbach", X: x, Y: y, Sigma: s}
+	if len(x) < MinLinearPoints {
+		return c, fmt.Errorf("urbach: %d points with α > 3σ below the gap: %w", len(x), ErrNoLinearRange)
+	}
+	ref := interpAlpha(d, gapHint)
+	if math.IsNaN(gapHint) {
+		ref = math.Exp(quantile(y, 1))
+	}
+	lo, hi := seedRange(y, math.Log(ref/20), math.Log(ref/2))
+	l, err := GrowLine(x, y, s, lo, hi, growTol)
+	if err != nil {
+		return c, fmt.Errorf("urbach: %w", err)
+	}
+	if !(l.Slope > 0) {
+		return c, fmt.Errorf("urbach: ln α does not rise with E in the tail: %w", ErrNoLinearRange)
+	}
+	c.Line = l
+	c.Value = 1 / l.Slope
+	c.Err = math.Sqrt(l.VarSlope) / (l.Slope * l.Slope)
+	c.Range = [2]float64{x[l.First], x[l.Last]}
+	c.Points = l.N
+	c.Chi2Red = l.Chi2Red
+	return c, nil
+}
+
+// edgeConstruction applies a transform to the usable points with positive
+// α and fits the grown line from a seed between the fractions lo and hi of
+// the 95th percentile of the transformed values.
+func edgeConstruction(d Data, name string, tr func(e, a, s float64) (y, sy float64, ok bool), lo, hi float64) (Construction, error) {
+	var x, y, s []float64
+	for i := range d.E {
+		if !d.usable(i) {
+			continue
+		}
+		yi, si, ok := tr(d.E[i], d.Alpha[i], d.Sigma[i])
+		if !ok || !(si > 0) || math.IsInf(yi, 0) {
+			continue
+		}
+		x = append(x, d.E[i])
+		y = append(y, yi)
+		s = append(s, si)
+	}
+	c := Construction{Name: name, X: x, Y: y, Sigma: s}
+	if len(x) < MinLinearPoints {
+		return c, fmt.Errorf("%s: %d usable points: %w", name, len(x), ErrNoLinearRange)
+	}
+	ref := quantile(y, 0.95)
+	first, last := seedRange(y, lo*ref, hi*ref)
+	l, err := GrowLine(x, y, s, first, last, growTol)
+	if err != nil {
+		return c, fmt.Errorf("%s: %w", name, err)
+	}
+	if !(l.Slope > 0) {
+		return c, fmt.Errorf("%s: the linear part does not rise with E: %w", name, ErrNoLinearRange)
+	}
+	c.Line = l
+	c.Range = [2]float64{x[l.First], x[l.Last]}
+	c.Points = l.N
+	c.Chi2Red = l.Chi2Red
+	return c, nil
+}
+
+// seedRange returns the run of indices from the first i with y[i] ≥ lo up
+// to the last index before y first exceeds hi after it, widened
+// symmetrically to MinLinearPoints where the run is shorter.
+func seedRange(y []float64, lo, hi float64) (first, last int) {
+	first = len(y) - 1
+	for i, v := range y {
+		if v >= lo {
+			first = i
+			break
+		}
+	}
+	last = first
+	for i := first + 1; i < len(y) && y[i] <= hi; i++ {
+		last = i
+	}
+	for last-first+1 < MinLinearPoints && (first > 0 || last < len(y)-1) {
+		if last < len(y)-1 {
+			last++
+		}
+		if last-first+1 < MinLinearPoints && first > 0 {
+			first--
+		}
+	}
+	return first, last
+}
+
+// interpAlpha interpolates α linearly in E at e over the usable points.
+func interpAlpha(d Data, e float64) float64 {
+	prev := -1
+	for i := range d.E {
+		if !d.usable(i) {
+			continue
+		}
+		if d.E[i] >= e {
+			if prev < 0 {
+				return d.Alpha[i]
+			}
+			f := (e - d.E[prev]) / (d.E[i] - d.E[prev])
+			return d.Alpha[prev]*(1-f) + d.Alpha[i]*f
+		}
+		prev = i
+	}
+	if prev >= 0 {
+		return d.Alpha[prev]
+	}
+	return math.NaN()
+}
+
+func taucName(r float64) string {
+	switch r {
+	case 0.5:
+		return "tauc-direct-allowed"
+	case 1.5:
+		return "tauc-direct-forbidden"
+	case 2:
+		return "tauc-indirect-allowed"
+	case 3:
+		return "tauc-indirect-forbidden"
+	}
+	return fmt.Sprintf("tauc-r%g", r)
+}
