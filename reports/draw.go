@@ -238,22 +238,23 @@ func valueWithU(v, u float64, unit string) string {
 	if math.IsNaN(u) || math.IsInf(u, 0) || u <= 0 {
 		return fmtG(v, 5) + " " + unit + " ± n/a"
 	}
-	dec := 1 - int(math.Floor(math.Log10(u)))
-	if dec < 0 {
-		dec = 0
-	}
-	if dec > 12 {
-		dec = 12
-	}
-	if math.Abs(v) >= 1e5 || (math.Abs(v) < 1e-3 && v != 0) {
+	if math.Abs(v) >= 1e6 || (math.Abs(v) < 1e-3 && v != 0) {
 		// Scientific: write both in the value's exponent.
 		e := math.Floor(math.Log10(math.Abs(v)))
 		s := math.Pow(10, e)
-		d := 1 - int(math.Floor(math.Log10(u/s)))
-		if d < 0 {
-			d = 0
-		}
-		return fmtFixed(v/s, d) + " ± " + fmtFixed(u/s, d) + " ×10" + superscript(int(e)) + " " + unit
+		return roundPair(v/s, u/s) + " ×10" + superscript(int(e)) + " " + unit
 	}
-	return fmtFixed(v, dec) + " ± " + fmtFixed(u, dec) + " " + unit
+	return roundPair(v, u) + " " + unit
+}
+
+// roundPair writes v ± u with u rounded to two significant digits and v to
+// the same place; above the units digit both are rounded to that place.
+func roundPair(v, u float64) string {
+	place := math.Floor(math.Log10(u)) - 1 // place of u's second digit
+	if place >= 0 {
+		q := math.Pow(10, place)
+		return fmtFixed(math.Round(v/q)*q, 0) + " ± " + fmtFixed(math.Round(u/q)*q, 0)
+	}
+	dec := min(int(-place), 12)
+	return fmtFixed(v, dec) + " ± " + fmtFixed(u, dec)
 }

@@ -197,10 +197,10 @@ func EdgeFigure(r EdgeReport) (*EdgePage, error) {
 		addLine(pt, clipY(tl, top), midGrey, 1.2, []vg.Length{vg.Points(1.5), vg.Points(2)}, fmt.Sprintf("Tauc line → %.4f eV", e0))
 	}
 	addVLine(pt, eg, 0, top, ink, []vg.Length{vg.Points(1), vg.Points(2)}, "")
-	pt.Legend.Top = true
-	pt.Legend.Left = true
-	pt.Legend.XOffs = vg.Points(4)
-	pt.Legend.YOffs = -vg.Points(2)
+	pt.Legend.Top = false
+	pt.Legend.Left = false
+	pt.Legend.XOffs = -vg.Points(4)
+	pt.Legend.YOffs = vg.Points(4)
 	pt.Legend.TextStyle.Font.Size = vg.Points(8)
 	pg.Tauc = pt
 
@@ -269,7 +269,9 @@ func resultLines(r EdgeReport, dropped int) (left, right []styledLine) {
 	} else if ok {
 		eg := paramValue(res, "eg")
 		add(b, 0, "E_g = %s   (U, k = %g)", valueWithU(eg, bg.Expanded, "eV"), bg.K)
-		add(s, 12, "u_c = %.2g eV; largest terms: %s", bg.Combined, budgetText(bg))
+		for i, l := range wrap(fmt.Sprintf("u_c = %.2g eV; largest terms: %s", bg.Combined, budgetText(bg)), 84) {
+			add(s, vg.Length(12+8*min(i, 1)), "%s", l)
+		}
 	}
 	if bu, ok := res.Budgets["eu"]; ok {
 		eu := paramValue(res, "eu")
@@ -280,7 +282,9 @@ func resultLines(r EdgeReport, dropped int) (left, right []styledLine) {
 	}
 	if be, ok := res.Budgets["ep"]; ok {
 		add(n, 0, "E_P = %s   (U, k = %g)", valueWithU(res.EP, be.Expanded, "eV"), be.K)
-		add(s, 12, "largest terms: %s", budgetText(be))
+		for i, l := range wrap("largest terms: "+budgetText(be), 84) {
+			add(s, vg.Length(12+8*min(i, 1)), "%s", l)
+		}
 	}
 	add(n, 0, "χ²_red = %.3g   points %d   window %.4f–%.4f eV", res.Chi2Red, res.Points, res.Window[0], res.Window[1])
 	add(s, 12, "%s", res.WindowRule)

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"time"
@@ -88,8 +89,11 @@ func runDemo(ctx context.Context, opts *demoOptions) error {
 		if rec.UrbachEV != nil {
 			eu = fmt.Sprintf("%.2f ± %.2f", 1e3*rec.UrbachEV.Float(), 2e3*rec.UrbachErrEV.Float())
 		}
-		fmt.Fprintf(w, "%-24s %-22s %-9.4f %-10.2g %s\n", s.File, fmt.Sprintf("%.4f ± %.4f", eg, U), s.Truth[0],
-			abs(eg-s.Truth[0])/uc, eu)
+		egText, dev := fmt.Sprintf("%.4f ± %.4f", eg, U), fmt.Sprintf("%.2g", abs(eg-s.Truth[0])/uc)
+		if math.IsNaN(uc) {
+			egText, dev = "not determined", "-"
+		}
+		fmt.Fprintf(w, "%-24s %-22s %-9.4f %-10s %s\n", s.File, egText, s.Truth[0], dev, eu)
 	}
 	fmt.Fprintf(w, "\nWhat each scan shows:\n")
 	for _, s := range scans {
