@@ -131,10 +131,11 @@ func EdgeFigure(r EdgeReport) (*EdgePage, error) {
 	for _, w := range res.Window {
 		addVLine(pa, w, ylo, yhi, midGrey, []vg.Length{vg.Points(6), vg.Points(2), vg.Points(1), vg.Points(2)}, "")
 	}
-	pa.Legend.Top = false
-	pa.Legend.Left = false
-	pa.Legend.XOffs = -vg.Points(4)
-	pa.Legend.YOffs = vg.Points(4)
+	// An absorption edge leaves the upper left of both panels empty.
+	pa.Legend.Top = true
+	pa.Legend.Left = true
+	pa.Legend.XOffs = vg.Points(6)
+	pa.Legend.YOffs = -vg.Points(2)
 	pa.Legend.TextStyle.Font.Size = vg.Points(8)
 	pg.Alpha = pa
 
@@ -197,10 +198,10 @@ func EdgeFigure(r EdgeReport) (*EdgePage, error) {
 		addLine(pt, clipY(tl, top), midGrey, 1.2, []vg.Length{vg.Points(1.5), vg.Points(2)}, fmt.Sprintf("Tauc line → %.4f eV", e0))
 	}
 	addVLine(pt, eg, 0, top, ink, []vg.Length{vg.Points(1), vg.Points(2)}, "")
-	pt.Legend.Top = false
-	pt.Legend.Left = false
-	pt.Legend.XOffs = -vg.Points(4)
-	pt.Legend.YOffs = vg.Points(4)
+	pt.Legend.Top = true
+	pt.Legend.Left = true
+	pt.Legend.XOffs = vg.Points(6)
+	pt.Legend.YOffs = -vg.Points(2)
 	pt.Legend.TextStyle.Font.Size = vg.Points(8)
 	pg.Tauc = pt
 
@@ -302,7 +303,7 @@ func resultLines(r EdgeReport, dropped int) (left, right []styledLine) {
 	} else {
 		add(b, 0, "Warnings")
 		for _, w := range res.Warnings {
-			for i, l := range wrap(w, 78) {
+			for i, l := range wrap(w, 72) {
 				ind := vg.Length(6)
 				if i > 0 {
 					ind = 14

@@ -230,7 +230,7 @@ func maskReasons(o *scan.Outcome) []string {
 			continue
 		}
 		if n := o.Conversion.Counts[r]; n > 0 {
-			out = append(out, fmt.Sprintf("%d %s", n, r))
+			out = append(out, fmt.Sprintf("%d %s", n, r.Text(o.Conversion.Kind)))
 		}
 	}
 	return out

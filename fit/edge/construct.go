@@ -43,10 +43,13 @@ const growTol = 3
 // with r = 1/2 (direct allowed), 3/2 (direct forbidden), 2 (indirect
 // allowed) or 3 (indirect forbidden). Only points with α > 0 enter.
 //
-// Linear range rule: u_ref is the 95th percentile of u = (αE)^(1/r); the
-// seed is the run of points from the first with u ≥ 0.2·u_ref up to the
-// last before u first exceeds 0.6·u_ref (widened to MinLinearPoints); it
-// then grows by GrowLine with a 3σ threshold. E_g is the root of the line.
+// Linear range rule: E_s is the energy where ln α rises fastest
+// (steepestRise); u_ref is the 95th percentile of u = (αE)^(1/r) over the
+// points from E_s − 0.1 eV to E_s + 0.3 eV, so that absorption far above the
+// edge does not set the scale; the seed is the run of points from the first
+// with u ≥ 0.2·u_ref up to the last before u first exceeds 0.6·u_ref
+// (widened to MinLinearPoints); it then grows by GrowLine with a 3σ
+// threshold. E_g is the root of the line.
 func Tauc(d Data, r float64) (Construction, error) {
 	name := taucName(r)
 	if !(r > 0) {
@@ -160,6 +163,17 @@ func edgeConstruction(d Data, name string, tr func(e, a, s float64) (y, sy float
 		return c, fmt.Errorf("%s: %d usable points: %w", name, len(x), ErrNoLinearRange)
 	}
 	ref := quantile(y, 0.95)
+	if es := steepestRise(d); !math.IsNaN(es) {
+		var near []float64
+		for i, e := range x {
+			if e >= es-edgeBelow && e <= es+edgeAbove {
+				near = append(near, y[i])
+			}
+		}
+		if len(near) >= MinLinearPoints {
+			ref = quantile(near, 0.95)
+		}
+	}
 	first, last := seedRange(y, lo*ref, hi*ref)
 	l, err := GrowLine(x, y, s, first, last, growTol)
 	if err != nil {
@@ -173,6 +187,58 @@ func edgeConstruction(d Data, name string, tr func(e, a, s float64) (y, sy float
 	c.Points = l.N
 	c.Chi2Red = l.Chi2Red
 	return c, nil
+}
+
+// The energy range around the steepest rise that sets the scale of a
+// Tauc or Cody plot (eV).
+const (
+	edgeBelow = 0.1
+	edgeAbove = 0.3
+	// slopeHalfWidth is the half-width (eV) of the local fits of ln α in
+	// steepestRise; at least two points lie on each side.
+	slopeHalfWidth = 0.01
+)
+
+// steepestRise returns the energy at which ln α rises fastest, from local
+// weighted straight-line fits of ln α over ±slopeHalfWidth (at least two
+// points on each side) among the usable points with α > 3σ_α. It returns
+// NaN when fewer than MinLinearPoints such points exist.
+func steepestRise(d Data) float64 {
+	var x, y, s []float64
+	for i := range d.E {
+		if d.usable(i) && d.Alpha[i] > 3*d.Sigma[i] {
+			x = append(x, d.E[i])
+			y = append(y, math.Log(d.Alpha[i]))
+			s = append(s, d.Sigma[i]/d.Alpha[i])
+		}
+	}
+	if len(x) < MinLinearPoints {
+		return math.NaN()
+	}
+	best, at := math.Inf(-1), math.NaN()
+	lo, hi := 0, 0
+	for i := range x {
+		for lo < i-2 && x[lo] < x[i]-slopeHalfWidth {
+			lo++
+		}
+		if hi < i {
+			hi = i
+		}
+		for hi+1 < len(x) && (hi < i+2 || x[hi+1] <= x[i]+slopeHalfWidth) {
+			hi++
+		}
+		if i-lo < 2 || hi-i < 2 {
+			continue
+		}
+		var ls lineSums
+		for j := lo; j <= hi; j++ {
+			ls.add(x[j], y[j], 1/(s[j]*s[j]))
+		}
+		if l, ok := ls.line(); ok && l.Slope > best {
+			best, at = l.Slope, x[i]
+		}
+	}
+	return at
 }
 
 // seedRange returns the run of indices from the first i with y[i] ≥ lo up

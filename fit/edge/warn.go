@@ -14,6 +14,10 @@ const (
 	// warnChi2P is the p-value of the χ² test below which the model is
 	// said not to describe the data within the noise.
 	warnChi2P = 1e-3
+	// warnChi2Rel is the reduced χ² above which a fit with relative
+	// weights only (α input) is said not to follow the data: residuals
+	// twice the assumed relative noise.
+	warnChi2Rel = 4
 	// warnCorr is the |correlation| between E_g and the amplitude above
 	// which E_g is said to be poorly separated from the amplitude.
 	warnCorr = 0.995
@@ -42,6 +46,9 @@ func (r *Result) warn(d Data, m model.Model, ieg, ieu, iamp int) {
 	}
 	if r.Points < warnPoints {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("only %d points in the fit window: the uncertainty rests on few points", r.Points))
+	}
+	if d.RelativeSigma && r.Chi2Red > warnChi2Rel {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("the residuals are %.2g times the assumed relative noise of α (χ²_red = %.3g): the model does not follow these data closely; the standard errors were scaled up by √χ²_red", math.Sqrt(r.Chi2Red), r.Chi2Red))
 	}
 	if !d.RelativeSigma && fr.DoF > 0 {
 		p := 1 - distuv.ChiSquared{K: float64(fr.DoF)}.CDF(fr.SSR)

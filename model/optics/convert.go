@@ -77,6 +77,15 @@ func (r Reason) String() string {
 	return fmt.Sprintf("Reason(%d)", int(r))
 }
 
+// Text is String in the words of the ordinate kind k: for AlphaInput the
+// NonPositive reason is α ≤ 0, not T ≤ 0.
+func (r Reason) Text(k Kind) string {
+	if k == AlphaInput && r == NonPositive {
+		return "α ≤ 0 (no logarithm or relative weight)"
+	}
+	return r.String()
+}
+
 // Reasons lists every Reason, Usable first, for printing counts in a fixed
 // order.
 func Reasons() []Reason {
@@ -151,6 +160,8 @@ type Settings struct {
 
 // Result is a spectrum converted to α.
 type Result struct {
+	// Kind is the ordinate kind the spectrum was converted from.
+	Kind Kind
 	// Alpha is α in cm⁻¹ at each energy; NaN where it is undefined
 	// (Reason NonFinite or NonPositive, or an absorbance so large that
 	// 10^(−A) underflows). Masked points with a defined α (BelowFloor,
@@ -235,7 +246,9 @@ func ToAlpha(e, y []float64, kind Kind, d float64, s *Settings) (*Result, error)
 	}
 	switch kind {
 	case AlphaInput:
-		return alphaInput(y), nil
+		res := alphaInput(y)
+		res.Kind = AlphaInput
+		return res, nil
 	case Transmittance, Absorbance:
 	default:
 		return nil, fmt.Errorf("%w: %v", ErrKind, kind)
@@ -245,6 +258,7 @@ func ToAlpha(e, y []float64, kind Kind, d float64, s *Settings) (*Result, error)
 	}
 
 	res := &Result{
+		Kind:          kind,
 		Alpha:         make([]float64, n),
 		Sigma:         make([]float64, n),
 		Mask:          make([]bool, n),
