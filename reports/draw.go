@@ -258,3 +258,33 @@ func roundPair(v, u float64) string {
 	dec := min(int(-place), 12)
 	return fmtFixed(v, dec) + " ± " + fmtFixed(u, dec)
 }
+
+// niceTicks labels about n major ticks at steps of 1, 2 or 5 times a power
+// of ten, with one unlabelled minor tick between them.
+type niceTicks struct{ n int }
+
+func (t niceTicks) Ticks(lo, hi float64) []plot.Tick {
+	if !(hi > lo) || math.IsInf(hi-lo, 0) || t.n < 2 {
+		return nil
+	}
+	raw := (hi - lo) / float64(t.n)
+	mag := math.Pow(10, math.Floor(math.Log10(raw)))
+	step := mag
+	for _, m := range []float64{1, 2, 5, 10} {
+		if m*mag >= raw {
+			step = m * mag
+			break
+		}
+	}
+	prec := max(-int(math.Floor(math.Log10(step))), 0)
+	var ticks []plot.Tick
+	for k := math.Ceil(lo / step * 2); k*step/2 <= hi && len(ticks) < 4*t.n; k++ {
+		v := k * step / 2
+		if math.Mod(k, 2) == 0 {
+			ticks = append(ticks, plot.Tick{Value: v, Label: strconv.FormatFloat(v, 'f', prec, 64)})
+		} else {
+			ticks = append(ticks, plot.Tick{Value: v})
+		}
+	}
+	return ticks
+}

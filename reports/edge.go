@@ -218,15 +218,7 @@ func (pg *EdgePage) Draw(c draw.Canvas) {
 	w := c.Max.X - c.Min.X
 	// Title.
 	c.FillText(textStyle(15, true), vg.Point{X: c.Min.X, Y: c.Max.Y}, pg.title)
-	// Footer.
-	fs := textStyle(7, false)
-	fs.YAlign = draw.YBottom
-	c.FillText(fs, vg.Point{X: c.Min.X, Y: c.Min.Y + 11}, wrap(Caution, 190)[0])
-	if lines := wrap(Caution, 190); len(lines) > 1 {
-		c.FillText(fs, vg.Point{X: c.Min.X, Y: c.Min.Y}, lines[1]+"   "+pg.footer)
-	} else {
-		c.FillText(fs, vg.Point{X: c.Min.X, Y: c.Min.Y}, pg.footer)
-	}
+	drawFooter(c, pg.footer)
 	body := draw.Crop(c, 0, 0, 26, -0.3*vg.Inch)
 	leftW := 0.58 * w
 	left := draw.Crop(body, 0, -(w - leftW), 0, 0)
@@ -256,6 +248,19 @@ func (pg *EdgePage) Draw(c draw.Canvas) {
 	y = textBlock(right, vg.Point{X: right.Min.X, Y: y}, pg.right)
 	_ = y
 	_ = pg.left
+}
+
+// drawFooter writes the caution and the provenance line at the foot of c.
+func drawFooter(c draw.Canvas, footer string) {
+	fs := textStyle(7, false)
+	fs.YAlign = draw.YBottom
+	lines := wrap(Caution, 190)
+	c.FillText(fs, vg.Point{X: c.Min.X, Y: c.Min.Y + 11}, lines[0])
+	last := footer
+	if len(lines) > 1 {
+		last = lines[1] + "   " + footer
+	}
+	c.FillText(fs, vg.Point{X: c.Min.X, Y: c.Min.Y}, last)
 }
 
 func resultLines(r EdgeReport, dropped int) (left, right []styledLine) {

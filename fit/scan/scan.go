@@ -92,6 +92,9 @@ type Settings struct {
 	ElectronMass float64 `json:"electron_mass,omitempty"`
 	HoleMass     float64 `json:"hole_mass,omitempty"`
 	MassRelErr   float64 `json:"mass_rel_err,omitempty"`
+	// Temperature is the sample temperature in K (0: not given). The
+	// indirect model needs it for its phonon occupation.
+	Temperature float64 `json:"temperature_k,omitempty"`
 	// WavelengthErr is the wavelength-scale standard uncertainty in nm.
 	WavelengthErr float64 `json:"wavelength_err_nm,omitempty"`
 	// Coverage is the coverage factor k (0: edge.DefaultCoverage).

@@ -1,6 +1,6 @@
 // Package quantity parses the unit-bearing values given on the command
 // line: lengths such as "1.2um", energy windows such as "1.35:1.65" and
-// noise levels such as "0.2%". Every error names the value and says what
+// noise levels such as "0.2%", and temperatures written in file names. Every error names the value and says what
 // was expected; nothing here panics on any input.
 package quantity
 
@@ -8,6 +8,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"regexp"
 	"strconv"
 	"strings"
 )
@@ -129,4 +130,28 @@ func number(s string) (float64, error) {
 		return 0, ErrValue
 	}
 	return v, nil
+}
+
+// temperatureInName matches a temperature in kelvin written in a file
+// name: digits (optionally with a decimal part) directly followed by K or
+// " K", not followed by another letter, e.g. "GaAs_300K.csv", "T77K",
+// "scan 295.5 K.txt".
+var temperatureInName = regexp.MustCompile(`(\d+(?:[.,]\d+)?) ?K(?:[^A-Za-z]|$)`)
+
+// TemperatureFromName returns the temperature in K written in a file name
+// (the last match of the pattern above) and whether there was one.
+func TemperatureFromName(name string) (float64, bool) {
+	base := name
+	if i := strings.LastIndexAny(base, `/\`); i >= 0 {
+		base = base[i+1:]
+	}
+	m := temperatureInName.FindAllStringSubmatch(base, -1)
+	if m == nil {
+		return 0, false
+	}
+	v, err := number(strings.Replace(m[len(m)-1][1], ",", ".", 1))
+	if err != nil || !(v > 0) || v > 5000 {
+		return 0, false
+	}
+	return v, true
 }

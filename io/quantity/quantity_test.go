@@ -115,3 +115,25 @@ func FuzzParseLength(f *testing.F) {
 		_, _ = ParseNoise(s)
 	})
 }
+
+func TestTemperatureFromName(t *testing.T) {
+	tests := []struct {
+		name string
+		want float64
+		ok   bool
+	}{
+		{"GaAs_300K.csv", 300, true},
+		{"dir/77K/W07-T295.5K.txt", 295.5, true},
+		{"scan 10 K.csv", 10, true},
+		{"run_4,2K.csv", 4.2, true},
+		{"KM2611-W03-centre.csv", 0, false},
+		{"W12Kelvin.csv", 0, false},
+		{"x_0K.csv", 0, false},
+	}
+	for _, tc := range tests {
+		got, ok := TemperatureFromName(tc.name)
+		if ok != tc.ok || got != tc.want {
+			t.Errorf("TemperatureFromName(%q) = %v, %v; want %v, %v", tc.name, got, ok, tc.want, tc.ok)
+		}
+	}
+}
