@@ -93,11 +93,16 @@ func (Direct) Eval(dst, e, p []float64) {
 //	∂α/∂E_g = −C / (2E·√(E − E_g)),   ∂α/∂C = √(E − E_g) / E   (E > E_g),
 //
 // and zeros for E ≤ E_g (one-sided from below; see the kink in Direct).
-func (Direct) Jacobian(dst *mat.Dense, e, p []float64) {
+func (m Direct) Jacobian(dst *mat.Dense, e, p []float64) {
 	checkJac(dst, e, p, 2)
+	raw := dst.RawMatrix()
+	m.jacobianRaw(raw.Data, raw.Stride, e, p)
+}
+
+func (Direct) jacobianRaw(data []float64, stride int, e, p []float64) {
 	eg, c := p[0], p[1]
 	for i, ei := range e {
-		row := dst.RawRowView(i)
+		row := data[i*stride : i*stride+2]
 		switch {
 		case ei > eg && ei > 0:
 			s := math.Sqrt(ei - eg)
@@ -110,3 +115,8 @@ func (Direct) Jacobian(dst *mat.Dense, e, p []float64) {
 		}
 	}
 }
+
+// TaucExponent returns 1/2 (direct allowed).
+func (Direct) TaucExponent() float64 { return 0.5 }
+
+var negInf, posInf = math.Inf(-1), math.Inf(1)

@@ -3,8 +3,28 @@
 //
 // Units: photon energy E in eV, absorption coefficient α in cm⁻¹. Units are
 // converted once, at the edges of the program (io/specio, cmd); nothing in
-// this package reads files, logs, keeps global state or draws random numbers,
-// and every model is safe for concurrent use.
+// this package reads files, logs, draws random numbers or keeps mutable
+// global state, and every model is safe for concurrent use. The only
+// package-level data are read-only tables of the broadened edges' universal
+// functions, each built once, at its first use, under a sync.Once.
+//
+// The models: Direct and DirectUrbach (the parabolic direct edge, bare and
+// with an exponential tail), and the family of Edge / TailedEdge values
+// built by New from a band shape (direct, direct-forbidden, indirect,
+// exciton) and a tail (none, urbach, gauss, theta, joined); WithBaseline
+// adds a constant or linear sub-gap background to any of them. Every
+// model has an analytic Jacobian (Jacobianer) and a Tauc exponent (Tauc);
+// models with a tail report its decay length (Tailed); those with extra
+// parameters can start them (Starter). Lookup and LookupConfig resolve the
+// names used on the command line ("indirect+gauss+linear").
+//
+// Speed: no model integrates numerically while it is evaluated. Closed
+// forms are used where they exist (exponential tail with the indirect
+// band) or tabulated once from them (exponential tail with the direct
+// bands); the Gaussian and free-θ kernels and the Elliott continuum are
+// tabulated once by quadrature (see powtab.go, exctab.go and octtab.go for
+// the representation, tolerances and measured accuracy, and
+// BenchmarkTableBuild for the cost of the first use).
 package model
 
 import (
@@ -66,4 +86,42 @@ func checkLen(dst, e, p []float64, np int) {
 	if len(p) != np {
 		panic("model: wrong number of parameters")
 	}
+}
+
+// Tailed is implemented by models with a sub-gap tail. TailWidth returns
+// the energy scale (eV) over which the tail decays by 1/e below the gap,
+// for the parameters p; the automatic window rule extends the fit window a
+// few of these below E_g. For an exponential (Urbach) tail it is E_U at
+// any depth. For a kernel exp(−|u/γ|^θ), whose local 1/e length
+// γ^θ/(θ|u|^{θ−1}) shrinks with depth when θ > 1, it is that length one
+// width below the gap (u = −γ), γ/θ: γ/2 for the Gaussian. The model's
+// doc comment states its choice.
+type Tailed interface {
+	TailWidth(p []float64) float64
+}
+
+// Starter is implemented by models that may have parameters besides the
+// gap, the amplitude and the Urbach energy ("eg", "amp", "eu"), which the
+// caller estimates from the data. Start sets those other entries of p to
+// typical starting values (stated in the model's doc comment) and leaves
+// eg, amp and eu untouched (a model without such parameters leaves p
+// unchanged). It panics if len(p) is wrong.
+type Starter interface {
+	Start(p []float64)
+}
+
+// Tauc is implemented by models whose band shape has a Tauc exponent r
+// (Tauc, Grigorovici & Vancu, phys. stat. sol. 15, 627, 1966): (αE)^{1/r}
+// is linear in E above the gap for a direct edge. r is 1/2 for direct
+// allowed, 3/2 for direct forbidden and 2 for indirect allowed transitions.
+type Tauc interface {
+	TaucExponent() float64
+}
+
+// rawJacobianer is implemented by every model of this package: it writes
+// the Jacobian into the leading len(p) columns of a row-major array (row i
+// at data[i*stride:]), so that a wrapper (WithBaseline) can fill its own
+// columns of the same matrix without a sub-matrix view.
+type rawJacobianer interface {
+	jacobianRaw(data []float64, stride int, e, p []float64)
 }

@@ -4,8 +4,6 @@ import (
 	"math"
 
 	"gonum.org/v1/gonum/mat"
-
-	"bandedge/model/specfun"
 )
 
 // quarterSqrtPi is √π/4 = Γ(3/2)/2.
@@ -48,6 +46,10 @@ const urbachAsymZ = 50
 // The parameter vector is p = [eg, amp, eu] (see Params for bounds).
 // Outside the bounds, eu ≤ 0 gives NaN (γ^½ is undefined); within them
 // and for finite E, α is finite and ≥ 0 (checked by the tests).
+//
+// F is taken from a table of its closed form (UrbachEdgeF), identical to
+// it within 3e-13 relative and about ten times faster: Eval and Jacobian
+// cost about 10 and 16 ns per energy (BenchmarkDirectUrbachEval).
 type DirectUrbach struct{}
 
 // Name returns "direct+urbach".
@@ -61,7 +63,22 @@ func (DirectUrbach) Eval(dst, e, p []float64) {
 	checkLen(dst, e, p, 3)
 	eg, c, g := p[0], p[1], p[2]
 	sg := math.Sqrt(g)
+	csg := c * sg
+	ig := 1 / g
+	tab := lapTable()
 	for i, ei := range e {
+		z := (ei - eg) * ig // within an ulp of (E − E_g)/γ
+		if ei > 0 {         // the two common branches of urbachEdge, inlined
+			switch {
+			case z > 0 && z < urbachAsymZ:
+				_, k, t := lapIndex(z)
+				dst[i] = csg * horner6(&tab.p[k], t) / ei
+				continue
+			case z <= 0 && z > -700:
+				dst[i] = csg * quarterSqrtPi * math.Exp(z) / ei
+				continue
+			}
+		}
 		if !(ei > 0) {
 			if math.IsNaN(ei) {
 				dst[i] = ei
@@ -70,7 +87,7 @@ func (DirectUrbach) Eval(dst, e, p []float64) {
 			}
 			continue
 		}
-		f, _, _ := urbachEdge((ei - eg) / g)
+		f, _, _ := urbachEdge(z)
 		dst[i] = c / ei * sg * f
 	}
 }
@@ -84,12 +101,20 @@ func (DirectUrbach) Eval(dst, e, p []float64) {
 //
 // The last bracket tends to −1/(2z^{3/2}) for large z and is computed from
 // an asymptotic series there (see urbachEdge), not by cancellation.
-func (DirectUrbach) Jacobian(dst *mat.Dense, e, p []float64) {
+func (m DirectUrbach) Jacobian(dst *mat.Dense, e, p []float64) {
 	checkJac(dst, e, p, 3)
+	raw := dst.RawMatrix()
+	m.jacobianRaw(raw.Data, raw.Stride, e, p)
+}
+
+func (DirectUrbach) jacobianRaw(data []float64, stride int, e, p []float64) {
 	eg, c, g := p[0], p[1], p[2]
 	sg := math.Sqrt(g)
+	cs := c / sg
+	ig := 1 / g
+	tab := lapTable()
 	for i, ei := range e {
-		row := dst.RawRowView(i)
+		row := data[i*stride : i*stride+3]
 		if !(ei > 0) {
 			v := 0.0
 			if math.IsNaN(ei) {
@@ -98,13 +123,33 @@ func (DirectUrbach) Jacobian(dst *mat.Dense, e, p []float64) {
 			row[0], row[1], row[2] = v, v, v
 			continue
 		}
-		f, df, h := urbachEdge((ei - eg) / g)
-		pre := c / ei / sg
+		z := (ei - eg) * ig // within an ulp of (E − E_g)/γ
+		var f, df, h float64
+		switch { // the two common branches of urbachEdge, inlined
+		case z > 0 && z < urbachAsymZ:
+			_, k, t := lapIndex(z)
+			f, df = horner6(&tab.p[k], t), horner6(&tab.q[k], t)
+			h = f/2 - z*df
+		case z <= 0 && z > -700:
+			f = quarterSqrtPi * math.Exp(z)
+			df, h = f, f*(0.5-z)
+		default:
+			f, df, h = urbachEdge(z)
+		}
+		inv := 1 / ei
+		pre := cs * inv // (C/E)·γ^{−½}
 		row[0] = -pre * df
-		row[1] = sg * f / ei
+		row[1] = sg * f * inv
 		row[2] = pre * h
 	}
 }
+
+// TailWidth returns E_U = p[2]: the tail is exactly exponential below the
+// gap, α ∝ exp((E − E_g)/E_U)/E.
+func (DirectUrbach) TailWidth(p []float64) float64 { return p[2] }
+
+// TaucExponent returns 1/2 (direct allowed).
+func (DirectUrbach) TaucExponent() float64 { return 0.5 }
 
 // UrbachEdgeF returns the universal function of the exponentially broadened
 // parabolic edge and its derivative,
@@ -130,6 +175,10 @@ func (DirectUrbach) Jacobian(dst *mat.Dense, e, p []float64) {
 // √π/4), and F″ = F − √z·Θ(z), so F is C² there. For large z,
 // F = √z − 1/(4 z^{3/2}) + O(z^{−7/2}) and F' = 1/(2√z) + O(z^{−5/2}).
 //
+// For 0 < z < 50 F and F' come from a table built at first use from this
+// closed form and interpolated by quintic Hermite polynomials in √z (see
+// lapTab: identical to the closed form within 3e-13 relative, and about
+// ten times faster than evaluating D and erfcx).
 // Far below (z < −745) eᶻ underflows and F = F' = 0. For z ≥ 50 F and F'
 // come from the asymptotic series of D and erfcx combined term by term:
 // with aₙ = (2n−1)!!/(2z)ⁿ,
@@ -155,11 +204,7 @@ func urbachEdge(z float64) (f, df, h float64) {
 		}
 		return f, f, f * (0.5 - z)
 	case z < urbachAsymZ:
-		y := math.Sqrt(z)
-		dw := specfun.Dawson(y)
-		ex := quarterSqrtPi * specfun.Erfcx(y)
-		f = y - dw/2 + ex
-		df = dw/2 + ex
+		f, df = lapTable().half(z)
 		return f, df, f/2 - z*df
 	case math.IsInf(z, 1):
 		return z, 0, 0

@@ -230,6 +230,10 @@ type jacobianCase struct {
 	}
 	p []float64
 	e []float64
+	// step is the relative finite-difference step (0: gonum's default
+	// 6e-6). Sharp features of width γ need h ≪ γ: the central
+	// difference's truncation error is about (h/γ)²/6 relative.
+	step float64
 }
 
 // checkJacobian compares m.Jacobian with fd.Jacobian (fd.Central, gonum's
@@ -243,22 +247,24 @@ func checkJacobian(t *testing.T, tc jacobianCase) {
 	got := mat.NewDense(len(tc.e), np, nil)
 	tc.m.Jacobian(got, tc.e, tc.p)
 	// Finite differences in scaled parameters: x_j = p_j / s_j.
+	// (x_j = ±1 keeps the sign of a negative parameter, e.g. a baseline)
 	scale := make([]float64, np)
+	x0 := make([]float64, np)
 	for j, v := range tc.p {
 		scale[j] = math.Abs(v)
+		if v == 0 {
+			scale[j] = 1
+		}
+		x0[j] = v / scale[j]
 	}
 	want := mat.NewDense(len(tc.e), np, nil)
-	x0 := make([]float64, np)
-	for j := range x0 {
-		x0[j] = 1
-	}
 	pp := make([]float64, np)
 	fd.Jacobian(want, func(y, x []float64) {
 		for j := range x {
 			pp[j] = x[j] * scale[j]
 		}
 		tc.m.Eval(y, tc.e, pp)
-	}, x0, &fd.JacobianSettings{Formula: fd.Central})
+	}, x0, &fd.JacobianSettings{Formula: fd.Central, Step: tc.step})
 	for j := 0; j < np; j++ {
 		colMax := 0.0
 		for i := range tc.e {
