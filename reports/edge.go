@@ -32,6 +32,8 @@ type EdgeReport struct {
 	InputLines []string
 	// Footer is the short provenance line.
 	Footer string
+	// Comparison, when not nil, is the ranking of --model auto.
+	Comparison *edge.Comparison
 }
 
 // EdgePage is a built edge report, ready to draw.
@@ -295,6 +297,18 @@ func resultLines(r EdgeReport, dropped int) (left, right []styledLine) {
 	add(n, 0, "χ²_red = %.3g   points %d   window %.4f–%.4f eV", res.Chi2Red, res.Points, res.Window[0], res.Window[1])
 	add(s, 12, "%s", res.WindowRule)
 	add(n, 0, "model %s; %s", res.Model, convergence(res))
+	if c := r.Comparison; c != nil {
+		add(s, 12, "recommended by AIC among %d candidates (Akaike weight %.2f):", len(c.Ranked), c.Candidates[c.Recommended].Weight)
+		for k, i := range c.Ranked {
+			if k >= 4 {
+				add(s, 20, "… %d more in the JSON record", len(c.Ranked)-k)
+				break
+			}
+			cd := c.Candidates[i]
+			eg, _ := cd.Result.Param("eg")
+			add(s, 20, "%d. %s  ΔAIC %.1f  w %.2f  E_g %.4f eV", k+1, cd.Model, cd.DeltaAIC, cd.Weight, eg.Value)
+		}
+	}
 	for _, l := range r.InputLines {
 		for i, part := range wrap(l, 84) {
 			add(s, vg.Length(8*min(i, 1)), "%s", part)

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"path/filepath"
 	"strings"
 	"time"
 
@@ -23,6 +24,7 @@ type fitOptions struct {
 	File        string
 	JSON        bool
 	Report      string
+	Views       bool
 	Flags       analysisFlags
 	Settings    scan.Settings
 	Now         func() time.Time
@@ -51,6 +53,9 @@ func newFitCmd(runF func(context.Context, *fitOptions) error) *cobra.Command {
 			if opts.Report != "" && !strings.HasSuffix(strings.ToLower(opts.Report), ".png") {
 				return flagErrorf("--report %q: the report is a PNG file; give a path ending in .png", opts.Report)
 			}
+			if opts.Views && opts.Report == "" {
+				return flagErrorf("--views adds a page to the report: give --report PATH.png too")
+			}
 			if runF != nil {
 				return runF(cmd.Context(), opts)
 			}
@@ -60,6 +65,7 @@ func newFitCmd(runF func(context.Context, *fitOptions) error) *cobra.Command {
 	opts.Flags.register(cmd.Flags())
 	cmd.Flags().BoolVar(&opts.JSON, "json", false, "print the result as one JSON object instead of text")
 	cmd.Flags().StringVar(&opts.Report, "report", "", "write a PNG report to this path")
+	cmd.Flags().BoolVar(&opts.Views, "views", false, "also write the Tauc (r = 1/2, 3/2, 2, 3), Cody and Urbach views as PATH-views.png")
 	return cmd
 }
 
@@ -73,6 +79,11 @@ func runFit(ctx context.Context, opts *fitOptions) error {
 		if err := writeReport(opts.Report, o, rec); err != nil {
 			return err
 		}
+		if opts.Views {
+			if err := writeViews(viewsPath(opts.Report), o, rec); err != nil {
+				return err
+			}
+		}
 	}
 	if opts.JSON {
 		if err := results.WriteJSON(opts.Out, rec); err != nil {
@@ -82,6 +93,9 @@ func runFit(ctx context.Context, opts *fitOptions) error {
 		printText(opts.Out, o)
 		if opts.Report != "" {
 			fmt.Fprintf(opts.Out, "report      %s\n", opts.Report)
+		}
+		if opts.Views {
+			fmt.Fprintf(opts.Out, "views       %s\n", viewsPath(opts.Report))
 		}
 	}
 	if !o.Result.Converged {
@@ -109,6 +123,7 @@ func classify(err error) error {
 func writeReport(path string, o *scan.Outcome, rec *results.Record) error {
 	fig, err := reports.EdgeFigure(reports.EdgeReport{
 		Title:      o.Spectrum.Name,
+		Comparison: o.Comparison,
 		Data:       o.Data,
 		Result:     o.Result,
 		Model:      o.Model,
@@ -117,6 +132,26 @@ func writeReport(path string, o *scan.Outcome, rec *results.Record) error {
 	})
 	if err != nil {
 		return fmt.Errorf("report for %s: %w", o.Path, err)
+	}
+	return reports.WritePNG(path, fig)
+}
+
+// viewsPath is the file of the views page that goes with a report.
+func viewsPath(report string) string {
+	return strings.TrimSuffix(report, filepath.Ext(report)) + "-views.png"
+}
+
+func writeViews(path string, o *scan.Outcome, rec *results.Record) error {
+	eg, _ := o.Result.Param("eg")
+	fig, err := reports.ViewsFigure(reports.ViewsReport{
+		Title:         o.Spectrum.Name + ": linearised constructions",
+		Constructions: o.Result.Constructions,
+		Gap:           eg.Value,
+		Model:         o.Result.Model,
+		Footer:        footer(rec),
+	})
+	if err != nil {
+		return fmt.Errorf("views for %s: %w", o.Path, err)
 	}
 	return reports.WritePNG(path, fig)
 }
@@ -148,16 +183,19 @@ func printText(w io.Writer, o *scan.Outcome) {
 	}
 	k := res.Budgets["eg"].K
 	fmt.Fprintf(w, "(u_c combined standard uncertainty; U = %g·u_c, expanded)\n", k)
-	for _, key := range []string{"eg", "eu", "ep"} {
-		b, ok := res.Budgets[key]
-		if !ok {
+	for _, key := range res.BudgetKeys() {
+		if key == "amp" {
 			continue
 		}
+		b := res.Budgets[key]
 		fmt.Fprintf(w, "\nbudget of %s (%s)\n", b.Quantity, b.Unit)
 		for _, t := range b.Terms {
 			fmt.Fprintf(w, "  %-18s %s  %10s  %s\n", t.Source, t.Type, fmtSig(t.U, 2), t.Note)
 		}
 		fmt.Fprintf(w, "  %-18s    %10s  %s\n", "combined u_c", fmtSig(b.Combined, 2), "root-sum-square, independent inputs")
+	}
+	if c := o.Comparison; c != nil {
+		printComparison(w, c)
 	}
 	if res.Tauc != nil {
 		fmt.Fprintf(w, "\nTauc (direct allowed) E_g = %.4f ± %.2g eV over %.4f–%.4f eV (%d points; statistical only)\n",
@@ -176,6 +214,28 @@ func printText(w io.Writer, o *scan.Outcome) {
 	}
 }
 
+// printComparison prints the ranking of --model auto.
+func printComparison(w io.Writer, c *edge.Comparison) {
+	fmt.Fprintf(w, "\nmodel comparison: %s\n", c.Criterion)
+	fmt.Fprintf(w, "  %-4s %-26s %2s %10s %8s %7s %8s %10s %9s %8s\n", "rank", "model", "k", "AIC", "ΔAIC", "weight", "ΔBIC", "E_g (eV)", "u_c", "χ²_red")
+	for r, i := range c.Ranked {
+		cd := c.Candidates[i]
+		eg, _ := cd.Result.Param("eg")
+		egText := fmt.Sprintf("%.4f", eg.Value)
+		if cd.Result.TailOnly {
+			egText = "n/d"
+		}
+		fmt.Fprintf(w, "  %-4d %-26s %2d %10.1f %8.1f %7.3f %8.1f %10s %9s %8.3g\n", r+1, cd.Model, cd.K, cd.AIC, cd.DeltaAIC, cd.Weight,
+			cd.DeltaBIC, egText, fmtSig(cd.Result.Budgets["eg"].Combined, 2), cd.Result.Chi2Red)
+	}
+	for _, cd := range c.Candidates {
+		if cd.Result == nil {
+			fmt.Fprintf(w, "  %-4s %-26s not fitted: %s\n", "-", cd.Model, cd.Err)
+		}
+	}
+	fmt.Fprintf(w, "  recommended: %s (the numbers above the budget tables are its own)\n", c.Candidates[c.Recommended].Model)
+}
+
 type headlineRow struct {
 	sym, unit string
 	v, uc, U  float64
@@ -183,13 +243,10 @@ type headlineRow struct {
 
 func headline(res *edge.Result) []headlineRow {
 	var rows []headlineRow
-	for _, key := range []string{"eg", "eu", "amp"} {
-		p, ok := res.Param(key)
-		b, okb := res.Budgets[key]
-		if !ok || !okb {
-			continue
+	for _, p := range res.Params {
+		if b, ok := res.Budgets[p.Name]; ok {
+			rows = append(rows, headlineRow{sym: p.Symbol, unit: p.Unit, v: p.Value, uc: b.Combined, U: b.Expanded})
 		}
-		rows = append(rows, headlineRow{sym: p.Symbol, unit: p.Unit, v: p.Value, uc: b.Combined, U: b.Expanded})
 	}
 	if b, ok := res.Budgets["ep"]; ok {
 		rows = append(rows, headlineRow{sym: "E_P", unit: "eV", v: res.EP, uc: b.Combined, U: b.Expanded})

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"strings"
 
@@ -27,6 +28,10 @@ type analysisFlags struct {
 	TNoise        string
 	MaxAbsorbance float64
 	Model         string
+	Tail          string
+	Baseline      string
+	Candidates    string
+	Temperature   float64
 	Window        string
 	ElectronMass  float64
 	HoleMass      float64
@@ -46,7 +51,12 @@ func (f *analysisFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&f.Columns, "columns", "", "x and y columns (and optionally R) by header name or 1-based index, e.g. 1,3 or \"Wavelength,%T\"")
 	fs.StringVar(&f.TNoise, "t-noise", "", "transmittance noise σ_T as a fraction (0.002) or in %T (0.2%); default: estimated from the data")
 	fs.Float64Var(&f.MaxAbsorbance, "max-absorbance", 0, "instrument floor: mask points with absorbance above this (default 3.5)")
-	fs.StringVar(&f.Model, "model", "direct+urbach", "edge model: "+strings.Join(model.Names(), ", "))
+	fs.StringVar(&f.Model, "model", "direct+urbach", "edge model: a band ("+strings.Join(model.Bands(), ", ")+
+		") with an optional +tail and +baseline, e.g. indirect+gauss+const; or auto to fit the candidates and rank them by AIC")
+	fs.StringVar(&f.Tail, "tail", "", "tail (broadening) of the model: "+strings.Join(model.Tails(), ", ")+"; replaces the tail named in --model")
+	fs.StringVar(&f.Baseline, "baseline", "", "sub-gap baseline fitted with the edge: "+strings.Join(model.Baselines(), " or "))
+	fs.StringVar(&f.Candidates, "candidates", "", "comma-separated models compared by --model auto (default: "+strings.Join(scan.AutoCandidates, ", ")+")")
+	fs.Float64Var(&f.Temperature, "temperature", 0, "sample temperature in K (the indirect model needs it)")
 	fs.StringVar(&f.Window, "window", "", "force the fit window LO:HI in eV, e.g. 1.35:1.65 (default: automatic, see README)")
 	fs.Float64Var(&f.ElectronMass, "electron-mass", 0, "electron effective mass in m₀, for E_P")
 	fs.Float64Var(&f.HoleMass, "hole-mass", 0, "hole effective mass in m₀, for E_P")
@@ -107,10 +117,27 @@ func (f *analysisFlags) settings() (scan.Settings, error) {
 		return s, flagErrorf("--max-absorbance %g: want a value of at least 0.5", f.MaxAbsorbance)
 	}
 	s.MaxAbsorbance = f.MaxAbsorbance
-	if _, err := model.Lookup(f.Model); err != nil {
+	if f.Temperature < 0 || f.Temperature > 5000 {
+		return s, flagErrorf("--temperature %g K: want a temperature in kelvin between 0 and 5000", f.Temperature)
+	}
+	s.Temperature = f.Temperature
+	if s.Model, err = f.modelName(); err != nil {
+		return s, err
+	}
+	if f.Candidates != "" {
+		if s.Model != scan.Auto {
+			return s, flagErrorf("--candidates goes with --model auto")
+		}
+		for _, c := range strings.Split(f.Candidates, ",") {
+			s.Candidates = append(s.Candidates, strings.TrimSpace(c))
+		}
+	}
+	if _, err := scan.Models(s); err != nil {
+		if errors.Is(err, model.ErrTemperature) {
+			return s, flagErrorf("the indirect model needs the sample temperature: give --temperature in kelvin")
+		}
 		return s, flagErrorf("--model: %v", err)
 	}
-	s.Model = f.Model
 	if f.Window != "" {
 		if s.Window, err = quantity.ParseWindow(f.Window); err != nil {
 			return s, flagErrorf("--window: %v", err)
@@ -136,6 +163,34 @@ func (f *analysisFlags) settings() (scan.Settings, error) {
 	}
 	s.Coverage = f.Coverage
 	return s, nil
+}
+
+// modelName composes the model name from --model, --tail and --baseline.
+func (f *analysisFlags) modelName() (string, error) {
+	if strings.EqualFold(strings.TrimSpace(f.Model), scan.Auto) {
+		if f.Tail != "" || f.Baseline != "" {
+			return "", flagErrorf("--tail and --baseline do not go with --model auto; list the models with --candidates")
+		}
+		return scan.Auto, nil
+	}
+	band, tail, base, err := model.ParseName(f.Model)
+	if err != nil {
+		return "", flagErrorf("--model: %v", err)
+	}
+	if f.Tail != "" {
+		tail = strings.ToLower(strings.TrimSpace(f.Tail))
+	}
+	if f.Baseline != "" {
+		base = strings.ToLower(strings.TrimSpace(f.Baseline))
+	}
+	name := band
+	if tail != "none" {
+		name += "+" + tail
+	}
+	if base != "" {
+		name += "+" + base
+	}
+	return name, nil
 }
 
 // describeInput returns the lines that describe a scan's input and

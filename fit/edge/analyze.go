@@ -127,8 +127,9 @@ type Result struct {
 	Cond float64 `json:"condition_number"`
 	// CovScaled is true when the covariance was scaled by χ²_red.
 	CovScaled bool `json:"covariance_scaled"`
-	// Budgets holds an uncertainty budget for E_g, E_U (tail models), the
-	// amplitude and E_P (when asked), keyed "eg", "eu", "amp", "ep".
+	// Budgets holds an uncertainty budget for every fitted parameter,
+	// keyed by its name ("eg", "amp", "eu", …), and for E_P ("ep") when
+	// asked.
 	Budgets map[string]Budget `json:"budgets"`
 	// EP is the implied Kane energy in eV (NaN when not asked).
 	EP float64 `json:"-"`
@@ -140,6 +141,9 @@ type Result struct {
 	// values (nil when they could not be made).
 	Tauc   *Construction `json:"tauc,omitempty"`
 	Urbach *Construction `json:"urbach,omitempty"`
+	// Constructions are all linearised constructions (Tauc for r = 1/2,
+	// 3/2, 2, 3; Cody; Urbach), as cross-checks.
+	Constructions []Construction `json:"constructions"`
 	// Start is the starting parameter vector.
 	Start []float64 `json:"start"`
 	// Warnings say, in plain words, how far to trust the numbers.
@@ -168,16 +172,17 @@ func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
 	}
 	o = o.withDefaults()
 	m := o.Model
-	ieg, iamp, ieu := model.ParamIndex(m, "eg"), model.ParamIndex(m, "amp"), model.ParamIndex(m, "eu")
+	ieg, iamp := model.ParamIndex(m, "eg"), model.ParamIndex(m, "amp")
 	if ieg < 0 || iamp < 0 {
 		return nil, fmt.Errorf("edge: model %s lacks an eg or amp parameter", m.Name())
 	}
-	if d.Usable() < len(m.Params())+2 {
-		return nil, fmt.Errorf("%w: %d usable points in the whole spectrum, need at least %d", ErrTooFewPoints, d.Usable(), len(m.Params())+2)
+	if need := minWindowPoints(len(m.Params())); d.Usable() < need {
+		return nil, fmt.Errorf("%w: %d usable points in the whole spectrum, need at least %d", ErrTooFewPoints, d.Usable(), need)
 	}
 	res := &Result{Model: m.Name(), Budgets: map[string]Budget{}, EP: math.NaN()}
 
 	start := startValues(d, m, res)
+	res.Constructions = Constructions(d)
 	forced := o.Window != [2]float64{}
 	var win [2]float64
 	var in []bool
@@ -216,28 +221,27 @@ func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
 		// Singular covariance: the estimates stand but say so.
 		res.Warnings = append(res.Warnings, fmt.Sprintf("the covariance could not be computed (%v): the parameters are not determined by these data", err))
 	}
-	res.warn(d, m, ieg, ieu, iamp)
+	res.warn(d, m, ieg, iamp)
 
-	// Uncertainty budgets.
-	win0 := res.Window
-	family := windowFamily(m, fr.Params, win0, ieu)
-	var famEg, famEU, famAmp []float64
+	// Uncertainty budgets: one per parameter, with the statistical and
+	// window terms; E_g and the amplitude get the input terms.
+	family := windowFamily(m, fr.Params, res.Window)
+	fam := make([][]float64, len(fr.Params))
 	if !o.NoWindowBudget {
 		for _, w := range family {
 			fw, err := fitWindow(ctx, d, m, windowMask(d, w), fr.Params)
 			if err != nil || fw.Status.Early() {
 				continue
 			}
-			famEg = append(famEg, fw.Params[ieg])
-			famAmp = append(famAmp, fw.Params[iamp])
-			if ieu >= 0 {
-				famEU = append(famEU, fw.Params[ieu])
+			for j, v := range fw.Params {
+				fam[j] = append(fam[j], v)
 			}
 		}
 	}
-	winTerm := func(vals []float64, unit string) Term {
-		t := Term{Source: "fit window", Type: TypeB, InputUnit: unit,
-			Note: fmt.Sprintf("standard deviation over %d refits: lower end ±%s, upper end ±%.2g eV", len(vals), shiftText(ieu), windowShiftAbove)}
+	winTerm := func(j int) Term {
+		vals := fam[j]
+		t := Term{Source: "fit window", Type: TypeB, InputUnit: m.Params()[j].Unit,
+			Note: fmt.Sprintf("standard deviation over %d refits: lower end ±%s, upper end ±%.2g eV", len(vals), shiftText(m), windowShiftAbove)}
 		if o.NoWindowBudget || len(vals) < 3 {
 			t.U = math.NaN()
 			t.Note = "not evaluated"
@@ -246,49 +250,36 @@ func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
 		}
 		return t
 	}
-	statTerm := func(i int, unit string) Term {
-		return Term{Source: "statistical", Type: TypeA, InputUnit: unit, U: res.Params[i].StdErr,
-			Note: res.statNote()}
+	terms := make([][]Term, len(fr.Params))
+	for j, q := range m.Params() {
+		terms[j] = []Term{{Source: "statistical", Type: TypeA, InputUnit: q.Unit, U: res.Params[j].StdErr, Note: res.statNote()}, winTerm(j)}
 	}
-
-	egTerms := []Term{statTerm(ieg, "eV"), winTerm(famEg, "eV")}
 	if o.WavelengthErr > 0 {
 		eg := fr.Params[ieg]
 		c := eg * eg / model.HCeVnm // |dE/dλ| at the edge
-		egTerms = append(egTerms, Term{Source: "wavelength scale", Type: TypeB, Input: o.WavelengthErr, InputUnit: "nm",
+		terms[ieg] = append(terms[ieg], Term{Source: "wavelength scale", Type: TypeB, Input: o.WavelengthErr, InputUnit: "nm",
 			Sensitivity: c, U: c * o.WavelengthErr, Note: "|dE/dλ| = E_g²/(hc) at the edge"})
 	}
-	var idx []float64 // E_g, amp refitted at n ± u_n
+	amp := fr.Params[iamp]
+	if o.ThicknessRelErr > 0 {
+		terms[iamp] = append(terms[iamp], Term{Source: "thickness", Type: TypeB, Input: o.ThicknessRelErr, InputUnit: "relative",
+			Sensitivity: amp, U: amp * o.ThicknessRelErr, Note: "α ∝ 1/d, so u(C)/C = u(d)/d"})
+	}
 	if o.Index != nil && o.Index.Err > 0 && o.Index.Reconvert != nil {
-		idx = indexSensitivity(ctx, o.Index, m, res.Window, fr.Params, ieg, iamp)
-		if idx != nil {
-			c := idx[0]
-			egTerms = append(egTerms, Term{Source: "refractive index", Type: TypeB, Input: o.Index.Err, InputUnit: "1",
-				Sensitivity: c, U: math.Abs(c) * o.Index.Err, Note: "refit of the spectrum reconverted at n ± u(n)"})
+		if c := indexSensitivity(ctx, o.Index, m, res.Window, fr.Params); c != nil {
+			for _, j := range []int{ieg, iamp} {
+				terms[j] = append(terms[j], Term{Source: "refractive index", Type: TypeB, Input: o.Index.Err, InputUnit: "1",
+					Sensitivity: c[j], U: math.Abs(c[j]) * o.Index.Err, Note: "refit of the spectrum reconverted at n ± u(n)"})
+			}
 		}
 	}
 	if res.TailOnly {
-		egTerms = append(egTerms, extrapolationTerm("eV"))
+		terms[ieg] = append(terms[ieg], extrapolationTerm("eV"))
+		terms[iamp] = append(terms[iamp], extrapolationTerm(m.Params()[iamp].Unit))
 	}
-	res.Budgets["eg"] = NewBudget("E_g", "eV", o.Coverage, egTerms...)
-	if ieu >= 0 {
-		res.Budgets["eu"] = NewBudget("E_U", "eV", o.Coverage, statTerm(ieu, "eV"), winTerm(famEU, "eV"))
+	for j, q := range m.Params() {
+		res.Budgets[q.Name] = NewBudget(q.Symbol, q.Unit, o.Coverage, terms[j]...)
 	}
-	amp := fr.Params[iamp]
-	ampUnit := m.Params()[iamp].Unit
-	ampTerms := []Term{statTerm(iamp, ampUnit), winTerm(famAmp, ampUnit)}
-	if o.ThicknessRelErr > 0 {
-		ampTerms = append(ampTerms, Term{Source: "thickness", Type: TypeB, Input: o.ThicknessRelErr, InputUnit: "relative",
-			Sensitivity: amp, U: amp * o.ThicknessRelErr, Note: "α ∝ 1/d, so u(C)/C = u(d)/d"})
-	}
-	if idx != nil {
-		ampTerms = append(ampTerms, Term{Source: "refractive index", Type: TypeB, Input: o.Index.Err, InputUnit: "1",
-			Sensitivity: idx[1], U: math.Abs(idx[1]) * o.Index.Err, Note: "refit of the spectrum reconverted at n ± u(n)"})
-	}
-	if res.TailOnly {
-		ampTerms = append(ampTerms, extrapolationTerm(ampUnit))
-	}
-	res.Budgets["amp"] = NewBudget(m.Params()[iamp].Symbol, ampUnit, o.Coverage, ampTerms...)
 	if o.Kane != nil {
 		res.kane(o, m, iamp)
 	}
@@ -312,29 +303,40 @@ func (o Options) withDefaults() Options {
 	return o
 }
 
-// startValues derives the start vector from the data: E_g from the direct
-// Tauc construction, E_U from the Urbach plot, the amplitude from a linear
-// least-squares solve with the others fixed, every value clamped into the
-// model's bounds.
+// startValues derives the start vector from the data: E_g from the Tauc
+// construction with the model's exponent (direct allowed when it has
+// none), the tail width from the Urbach plot (E_U for "eu"; 2·E_U for a
+// Gaussian-type width "gw", whose 1/e length one width below the gap is
+// γ/θ), the model's own typical values for its other parameters
+// (model.Starter), and the amplitude from a weighted linear least-squares
+// solve with the others fixed; every value is clamped into the bounds.
 func startValues(d Data, m model.Model, res *Result) []float64 {
 	ps := m.Params()
 	p := make([]float64, len(ps))
 	for i, q := range ps {
 		p[i] = midpoint(q)
 	}
-	ieg, iamp, ieu := model.ParamIndex(m, "eg"), model.ParamIndex(m, "amp"), model.ParamIndex(m, "eu")
+	ieg, iamp := model.ParamIndex(m, "eg"), model.ParamIndex(m, "amp")
+	ieu, igw := model.ParamIndex(m, "eu"), model.ParamIndex(m, "gw")
+	r := 0.5
+	if t, ok := m.(model.Tauc); ok {
+		r = t.TaucExponent()
+	}
 	gap := math.NaN()
-	if t, err := Tauc(d, 0.5); err == nil && isFinite(t.Value) {
+	if t, err := Tauc(d, r); err == nil && isFinite(t.Value) {
 		res.Tauc = &t
 		gap = t.Value
 	}
+	eu := defaultUrbachStart
 	if u, err := Urbach(d, gap); err == nil {
 		res.Urbach = &u
-		if ieu >= 0 {
-			p[ieu] = u.Value
-		}
-	} else if ieu >= 0 {
-		p[ieu] = defaultUrbachStart
+		eu = u.Value
+	}
+	if ieu >= 0 {
+		p[ieu] = eu
+	}
+	if igw >= 0 {
+		p[igw] = 2 * eu
 	}
 	if math.IsNaN(gap) {
 		// No Tauc line: put the gap where α reaches half its largest
@@ -342,6 +344,9 @@ func startValues(d Data, m model.Model, res *Result) []float64 {
 		gap = halfRise(d)
 	}
 	p[ieg] = gap
+	if st, ok := m.(model.Starter); ok {
+		st.Start(p)
+	}
 	for i, q := range ps {
 		p[i] = math.Min(math.Max(p[i], q.Min), q.Max)
 	}
@@ -398,15 +403,33 @@ func halfRise(d Data) float64 {
 func autoWindow(m model.Model, p []float64, o Options) [2]float64 {
 	eg := p[model.ParamIndex(m, "eg")]
 	lo := eg
-	if ieu := model.ParamIndex(m, "eu"); ieu >= 0 {
-		lo = eg - o.TailWidth*p[ieu]
+	if w, ok := tailWidth(m, p); ok {
+		lo = eg - o.TailWidth*w
 	}
 	return [2]float64{lo, eg + o.AboveGap}
 }
 
+// tailWidth returns the energy scale of the model's sub-gap tail at p:
+// model.Tailed's TailWidth, else the "eu" parameter, and whether the
+// model has a tail at all.
+func tailWidth(m model.Model, p []float64) (float64, bool) {
+	if t, ok := m.(model.Tailed); ok {
+		return t.TailWidth(p), true
+	}
+	if i := model.ParamIndex(m, "eu"); i >= 0 {
+		return p[i], true
+	}
+	return 0, false
+}
+
+func hasTail(m model.Model) bool {
+	_, ok := tailWidth(m, make([]float64, len(m.Params())))
+	return ok
+}
+
 func autoRule(m model.Model, o Options) string {
-	if model.ParamIndex(m, "eu") >= 0 {
-		return fmt.Sprintf("automatic: E_g − %g·E_U to E_g + %g eV, iterated to a fixed point", o.TailWidth, o.AboveGap)
+	if hasTail(m) {
+		return fmt.Sprintf("automatic: E_g − %g tail widths to E_g + %g eV, iterated to a fixed point", o.TailWidth, o.AboveGap)
 	}
 	return fmt.Sprintf("automatic: E_g to E_g + %g eV, iterated to a fixed point", o.AboveGap)
 }
@@ -457,8 +480,8 @@ func count(in []bool) int {
 // fitWindow fits m to the points of d marked in in.
 func fitWindow(ctx context.Context, d Data, m model.Model, in []bool, start []float64) (*fit.Result, error) {
 	n := count(in)
-	if n < len(start)+2 {
-		return nil, fmt.Errorf("%w: %d points, need at least %d", ErrTooFewPoints, n, len(start)+2)
+	if need := minWindowPoints(len(start)); n < need {
+		return nil, fmt.Errorf("%w: %d points, need at least %d (3 per parameter, at least %d)", ErrTooFewPoints, n, need, MinWindowPoints)
 	}
 	e := make([]float64, 0, n)
 	a := make([]float64, 0, n)
@@ -470,8 +493,60 @@ func fitWindow(ctx context.Context, d Data, m model.Model, in []bool, start []fl
 			w = append(w, 1/(d.Sigma[i]*d.Sigma[i]))
 		}
 	}
-	return fit.Fit(ctx, fit.Problem{E: e, Alpha: a, Weights: w, Model: m, Init: start},
-		&fit.Settings{AbsoluteSigma: d.SigmaKnown})
+	prob := fit.Problem{E: e, Alpha: a, Weights: w, Model: m, Init: start}
+	set := &fit.Settings{AbsoluteSigma: d.SigmaKnown}
+	fr, err := fit.Fit(ctx, prob, set)
+	if fr == nil || !atBound(fr) || ctx.Err() != nil {
+		return fr, err
+	}
+	// A fit that ends on a bound is often a local minimum reached from a
+	// poor start (an Urbach energy run down to its floor): refit from the
+	// start with the tail width three times larger and three times
+	// smaller, and keep the lowest χ².
+	for _, alt := range alternativeStarts(m, start) {
+		prob.Init = alt
+		fa, erra := fit.Fit(ctx, prob, set)
+		if fa != nil && !fa.Status.Early() && fa.SSR < fr.SSR*(1-1e-9) {
+			fr, err = fa, erra
+		}
+	}
+	return fr, err
+}
+
+// MinWindowPoints is the fewest points a fit window may hold; a model
+// with k parameters needs at least 3k.
+const MinWindowPoints = 10
+
+func minWindowPoints(k int) int { return max(MinWindowPoints, 3*k) }
+
+func atBound(fr *fit.Result) bool {
+	for _, b := range fr.AtBound {
+		if b {
+			return true
+		}
+	}
+	return false
+}
+
+// alternativeStarts returns start vectors with the tail width ("eu" or
+// "gw") scaled by 3 and by 1/3, clamped into the bounds; none for models
+// without a tail parameter.
+func alternativeStarts(m model.Model, start []float64) [][]float64 {
+	j := model.ParamIndex(m, "eu")
+	if j < 0 {
+		j = model.ParamIndex(m, "gw")
+	}
+	if j < 0 {
+		return nil
+	}
+	q := m.Params()[j]
+	var out [][]float64
+	for _, f := range []float64{3, 1.0 / 3} {
+		alt := append([]float64(nil), start...)
+		alt[j] = math.Min(math.Max(start[j]*f, q.Min), q.Max)
+		out = append(out, alt)
+	}
+	return out
 }
 
 func (r *Result) fill(m model.Model, fr *fit.Result, sigmaKnown bool, n int) {
@@ -515,12 +590,13 @@ func (r *Result) statNote() string {
 }
 
 // windowFamily returns the eight windows around w used for the window
-// term: the lower end moved by −s, 0, +s and the upper end by −0.10, 0,
-// +0.10 eV, without the nominal window itself.
-func windowFamily(m model.Model, p []float64, w [2]float64, ieu int) [][2]float64 {
+// term: the lower end moved by −s, 0, +s (s = 2 tail widths, or 0.02 eV
+// for models without a tail) and the upper end by −0.10, 0, +0.10 eV,
+// without the nominal window itself.
+func windowFamily(m model.Model, p []float64, w [2]float64) [][2]float64 {
 	s := windowShiftNoTail
-	if ieu >= 0 {
-		s = windowShiftTail * p[ieu]
+	if tw, ok := tailWidth(m, p); ok {
+		s = windowShiftTail * tw
 	}
 	var fam [][2]float64
 	for _, dl := range []float64{-s, 0, s} {
@@ -534,9 +610,9 @@ func windowFamily(m model.Model, p []float64, w [2]float64, ieu int) [][2]float6
 	return fam
 }
 
-func shiftText(ieu int) string {
-	if ieu >= 0 {
-		return fmt.Sprintf("%g·E_U", float64(windowShiftTail))
+func shiftText(m model.Model) string {
+	if hasTail(m) {
+		return fmt.Sprintf("%g tail widths", float64(windowShiftTail))
 	}
 	return fmt.Sprintf("%.2g eV", windowShiftNoTail)
 }
@@ -549,8 +625,8 @@ func extrapolationTerm(unit string) Term {
 }
 
 // indexSensitivity refits at n ± u(n) and returns the central-difference
-// sensitivities [∂E_g/∂n, ∂C/∂n], or nil when a refit fails.
-func indexSensitivity(ctx context.Context, ix *IndexInput, m model.Model, w [2]float64, p []float64, ieg, iamp int) []float64 {
+// sensitivities ∂p_j/∂n of every parameter, or nil when a refit fails.
+func indexSensitivity(ctx context.Context, ix *IndexInput, m model.Model, w [2]float64, p []float64) []float64 {
 	var v [2][]float64
 	for k, sgn := range []float64{-1, 1} {
 		d, err := ix.Reconvert(ix.Value + sgn*ix.Err)
@@ -564,5 +640,9 @@ func indexSensitivity(ctx context.Context, ix *IndexInput, m model.Model, w [2]f
 		v[k] = fr.Params
 	}
 	h := 2 * ix.Err
-	return []float64{(v[1][ieg] - v[0][ieg]) / h, (v[1][iamp] - v[0][iamp]) / h}
+	c := make([]float64, len(p))
+	for j := range c {
+		c[j] = (v[1][j] - v[0][j]) / h
+	}
+	return c
 }

@@ -24,11 +24,42 @@ type Construction struct {
 	Points int `json:"points"`
 	// Chi2Red is the reduced χ² about the line.
 	Chi2Red float64 `json:"chi2_reduced"`
+	// Failed says why, when no linear range was found (the numbers are
+	// then not set).
+	Failed string `json:"failed,omitempty"`
 	// Line is the fitted line in the plot's own coordinates.
 	Line Line `json:"-"`
 	// X, Y, Sigma are the plotted points (all usable points, not only the
 	// linear part), for reports.
 	X, Y, Sigma []float64 `json:"-"`
+}
+
+// Constructions makes every linearised construction of d: the Tauc plot
+// for r = 1/2, 3/2, 2 and 3, the Cody plot, and the Urbach plot below the
+// direct-allowed Tauc gap. A construction that finds no linear range is
+// kept with Failed set, so a report can say so.
+func Constructions(d Data) []Construction {
+	var out []Construction
+	gap := math.NaN()
+	for _, r := range []float64{0.5, 1.5, 2, 3} {
+		c, err := Tauc(d, r)
+		if err != nil {
+			c = Construction{Name: taucName(r), Exponent: r, X: c.X, Y: c.Y, Sigma: c.Sigma, Failed: err.Error()}
+		} else if r == 0.5 {
+			gap = c.Value
+		}
+		out = append(out, c)
+	}
+	c, err := Cody(d)
+	if err != nil {
+		c = Construction{Name: "cody", X: c.X, Y: c.Y, Sigma: c.Sigma, Failed: err.Error()}
+	}
+	out = append(out, c)
+	u, err := Urbach(d, gap)
+	if err != nil {
+		u = Construction{Name: "urbach", X: u.X, Y: u.Y, Sigma: u.Sigma, Failed: err.Error()}
+	}
+	return append(out, u)
 }
 
 // growTol is the acceptance threshold, in standard deviations, of GrowLine
@@ -101,8 +132,11 @@ func Cody(d Data) (Construction, error) {
 // to points with α > 3σ_α (so that ln α is near-Gaussian) below gapHint
 // (eV; NaN for none). Linear range rule: α_ref is α interpolated at gapHint,
 // or the largest usable α when there is no hint; the seed is the run of
-// points with α between α_ref/20 and α_ref/2, grown by GrowLine with a 3σ
-// threshold but never past gapHint. E_U is the inverse slope.
+// points just below the gap with α between α_ref/20 and α_ref/2 (searched
+// downwards from the gap), grown by GrowLine with a 3σ threshold but never
+// past gapHint nor below the last break in the energies (a gap wider than
+// three median spacings, where α sank into the noise). E_U is the inverse
+// slope.
 func Urbach(d Data, gapHint float64) (Construction, error) {
 	var x, y, s []float64
 	for i := range d.E {
@@ -116,6 +150,12 @@ func Urbach(d Data, gapHint float64) (Construction, error) {
 		y = append(y, math.Log(d.Alpha[i]))
 		s = append(s, d.Sigma[i]/d.Alpha[i])
 	}
+	// Keep the run of points that reaches the gap: below a break in
+	// energy (points dropped because α sank into the noise) the tail is no
+	// longer measured, and an isolated noise spike must not join the line.
+	if k := lastBreak(x); k > 0 {
+		x, y, s = x[k:], y[k:], s[k:]
+	}
 	c := Construction{Name: "urbach", X: x, Y: y, Sigma: s}
 	if len(x) < MinLinearPoints {
 		return c, fmt.Errorf("urbach: %d points with α > 3σ below the gap: %w", len(x), ErrNoLinearRange)
@@ -124,7 +164,7 @@ func Urbach(d Data, gapHint float64) (Construction, error) {
 	if math.IsNaN(gapHint) {
 		ref = math.Exp(quantile(y, 1))
 	}
-	lo, hi := seedRange(y, math.Log(ref/20), math.Log(ref/2))
+	lo, hi := seedRangeDown(y, math.Log(ref/20), math.Log(ref/2))
 	l, err := GrowLine(x, y, s, lo, hi, growTol)
 	if err != nil {
 		return c, fmt.Errorf("urbach: %w", err)
@@ -262,6 +302,52 @@ func seedRange(y []float64, lo, hi float64) (first, last int) {
 		}
 		if last-first+1 < MinLinearPoints && first > 0 {
 			first--
+		}
+	}
+	return first, last
+}
+
+// lastBreak returns the index after the last gap in x wider than three
+// median spacings, or 0 when there is none.
+func lastBreak(x []float64) int {
+	if len(x) < 3 {
+		return 0
+	}
+	dx := make([]float64, len(x)-1)
+	for i := range dx {
+		dx[i] = x[i+1] - x[i]
+	}
+	med := quantile(dx, 0.5)
+	for i := len(dx) - 1; i >= 0; i-- {
+		if dx[i] > 3*med {
+			return i + 1
+		}
+	}
+	return 0
+}
+
+// seedRangeDown is seedRange searched from the top: the run ends at the
+// highest index with y ≤ hi and extends down while y ≥ lo, so that a noise
+// spike far below the edge cannot start the seed. It is widened to
+// MinLinearPoints like seedRange.
+func seedRangeDown(y []float64, lo, hi float64) (first, last int) {
+	last = 0
+	for i := len(y) - 1; i >= 0; i-- {
+		if y[i] <= hi {
+			last = i
+			break
+		}
+	}
+	first = last
+	for i := last - 1; i >= 0 && y[i] >= lo; i-- {
+		first = i
+	}
+	for last-first+1 < MinLinearPoints && (first > 0 || last < len(y)-1) {
+		if first > 0 {
+			first--
+		}
+		if last-first+1 < MinLinearPoints && last < len(y)-1 {
+			last++
 		}
 	}
 	return first, last

@@ -85,6 +85,11 @@ func (s *lineSums) line() (l Line, ok bool) {
 	return l, true
 }
 
+// maxInflate caps the inflation of σ by the seed's own scatter in
+// GrowLine: a seed that is curved, not noisy, would otherwise let the
+// range grow over any curvature.
+const maxInflate = 2
+
 // GrowLine fits a straight line to (x, y) with standard deviations sigma,
 // starting from the seed range [lo, hi] (inclusive indices; x ascending)
 // and growing it by the stated rule:
@@ -92,9 +97,9 @@ func (s *lineSums) line() (l Line, ok bool) {
 //	the range grows one point at a time, alternately at its upper and its
 //	lower end, while the candidate point lies within tol standard
 //	deviations of the line fitted to the current range; σ is the
-//	propagated noise of the point, inflated by √χ²_red of the seed when the
-//	seed itself is not linear within its noise. Growth at an end stops at
-//	the first point that fails.
+//	propagated noise of the point, inflated by √χ²_red of the seed (at
+//	most by maxInflate) when the seed itself is not linear within its
+//	noise. Growth at an end stops at the first point that fails.
 //
 // This is the reproducible replacement for choosing the linear part of a
 // Tauc or Urbach plot by eye.
@@ -110,7 +115,7 @@ func GrowLine(x, y, sigma []float64, lo, hi int, tol float64) (Line, error) {
 	if !ok {
 		return Line{}, fmt.Errorf("degenerate seed: %w", ErrNoLinearRange)
 	}
-	inflate := math.Sqrt(math.Max(l.Chi2Red, 1))
+	inflate := math.Min(math.Sqrt(math.Max(l.Chi2Red, 1)), maxInflate)
 	accept := func(i int) bool {
 		r := y[i] - (l.Intercept + l.Slope*x[i])
 		return math.Abs(r) <= tol*inflate*sigma[i]

@@ -31,7 +31,7 @@ const (
 )
 
 // warn adds the trust warnings that follow from the fit itself.
-func (r *Result) warn(d Data, m model.Model, ieg, ieu, iamp int) {
+func (r *Result) warn(d Data, m model.Model, ieg, iamp int) {
 	fr := r.Fit
 	if fr.Status.Early() {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("the fit did not converge (%s): the numbers are the last iterate, not an estimate", fr.Status))
@@ -63,17 +63,17 @@ func (r *Result) warn(d Data, m model.Model, ieg, ieu, iamp int) {
 	if r.Correlation != nil && math.Abs(r.Correlation[ieg][iamp]) > warnCorr {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("E_g and the amplitude are correlated at %.4f: the gap is poorly separated from the amplitude", r.Correlation[ieg][iamp]))
 	}
-	if ieu >= 0 {
-		eg, eu := fr.Params[ieg], fr.Params[ieu]
+	if tw, ok := tailWidth(m, fr.Params); ok {
+		eg := fr.Params[ieg]
 		n := 0
-		for i, ok := range r.InWindow {
-			if ok && d.E[i] > eg+3*eu {
+		for i, in := range r.InWindow {
+			if in && d.E[i] > eg+3*tw {
 				n++
 			}
 		}
 		if n < aboveGapPoints {
 			r.TailOnly = true
-			r.Warnings = append(r.Warnings, fmt.Sprintf("E_g is not determined: only %d window points lie more than 3·E_U above E_g, so the data show the tail, not the band; in the tail E_g and the amplitude trade off exactly, and only E_U is measured (use a thinner sample to see the band)", n))
+			r.Warnings = append(r.Warnings, fmt.Sprintf("E_g is not determined: only %d window points lie more than 3 tail widths above E_g, so the data show the tail, not the band; in the tail E_g and the amplitude trade off exactly, and only the tail is measured (use a thinner sample to see the band)", n))
 		}
 	}
 }
@@ -81,15 +81,26 @@ func (r *Result) warn(d Data, m model.Model, ieg, ieu, iamp int) {
 // budgetWarnings flags budgets whose combined uncertainty is unknown and
 // names the dominant source of the gap's uncertainty.
 func (r *Result) budgetWarnings() {
-	for _, key := range []string{"eg", "eu", "amp", "ep"} {
-		b, ok := r.Budgets[key]
-		if !ok {
-			continue
-		}
+	for _, key := range r.BudgetKeys() {
+		b := r.Budgets[key]
 		if math.IsNaN(b.Combined) && !r.TailOnly {
 			r.Warnings = append(r.Warnings, fmt.Sprintf("the uncertainty of %s is incomplete: a budget term could not be evaluated", b.Quantity))
 		}
 	}
+}
+
+// BudgetKeys returns the budget keys in parameter order, then "ep".
+func (r *Result) BudgetKeys() []string {
+	var keys []string
+	for _, p := range r.Params {
+		if _, ok := r.Budgets[p.Name]; ok {
+			keys = append(keys, p.Name)
+		}
+	}
+	if _, ok := r.Budgets["ep"]; ok {
+		keys = append(keys, "ep")
+	}
+	return keys
 }
 
 // kane derives E_P and its budget from the amplitude's budget.

@@ -1,5 +1,6 @@
 // Package scan analyses one spectrophotometer scan end to end: it reads the
-// export (io/specio), converts it to α(E) with its noise and mask
+// export (io/specio for delimited text, io/jcampdx for JCAMP-DX, chosen by
+// content), converts it to α(E) with its noise and mask
 // (model/optics) and fits the edge (fit/edge). Batch work, the fit command
 // and the claim check all go through Analyze, so every path computes the
 // same numbers from the same settings.
@@ -17,6 +18,7 @@ import (
 	"path/filepath"
 
 	"bandedge/fit/edge"
+	"bandedge/io/jcampdx"
 	"bandedge/io/specio"
 	"bandedge/model"
 	"bandedge/model/optics"
@@ -82,9 +84,12 @@ type Settings struct {
 	// optics.DefaultMaxAbsorbance.
 	MaxAbsorbance float64 `json:"max_absorbance,omitempty"`
 
-	// Model is the edge model name (model.Lookup); "" means
-	// "direct+urbach".
+	// Model is the edge model name (model.LookupConfig, e.g.
+	// "direct+urbach", "indirect+gauss+const"); "" means "direct+urbach";
+	// Auto compares Candidates (or AutoCandidates) and keeps the best.
 	Model string `json:"model"`
+	// Candidates are the models compared when Model is Auto.
+	Candidates []string `json:"candidates,omitempty"`
 	// Window forces the fit window (eV); zero selects the automatic rule.
 	Window [2]float64 `json:"window_ev,omitempty"`
 	// ElectronMass and HoleMass (m₀) ask for the Kane energy; MassRelErr
@@ -114,9 +119,12 @@ type Outcome struct {
 	Reflectance string
 	// Data is what the fit saw.
 	Data edge.Data
-	// Model is the fitted model and Result the analysis.
+	// Model is the fitted model and Result the analysis (for Model "auto",
+	// the recommended candidate's).
 	Model  model.Model
 	Result *edge.Result
+	// Comparison holds every candidate when Model is "auto", else nil.
+	Comparison *edge.Comparison
 	// Settings are the settings the scan was analysed with.
 	Settings Settings
 }
@@ -139,16 +147,13 @@ func AnalyzeFile(ctx context.Context, path string, s Settings) (*Outcome, error)
 func Analyze(ctx context.Context, name string, b []byte, s Settings) (*Outcome, error) {
 	sum := sha256.Sum256(b)
 	o := &Outcome{Path: name, SHA256: hex.EncodeToString(sum[:]), Settings: s}
-	m, err := model.Lookup(modelName(s.Model))
+	cands, err := Models(s)
 	if err != nil {
 		return nil, &Error{File: name, Stage: StageFit, Err: err}
 	}
-	o.Model = m
+	o.Model = cands[0]
 
-	r := specio.NewReader(bytes.NewReader(b), filepath.Base(name))
-	r.XUnit, r.YKind = s.XUnit, s.YKind
-	r.XColumn, r.YColumn, r.RColumn = s.XColumn, s.YColumn, s.RColumn
-	sp, err := r.Read()
+	sp, err := read(b, filepath.Base(name), s)
 	if err != nil {
 		return nil, &Error{File: name, Stage: StageRead, Err: err}
 	}
@@ -161,7 +166,7 @@ func Analyze(ctx context.Context, name string, b []byte, s Settings) (*Outcome, 
 	o.Data, o.Conversion, o.Reflectance = data, conv, how
 
 	opts := edge.Options{
-		Model:           m,
+		Model:           cands[0],
 		Window:          s.Window,
 		Coverage:        s.Coverage,
 		WavelengthErr:   s.WavelengthErr,
@@ -180,12 +185,90 @@ func Analyze(ctx context.Context, name string, b []byte, s Settings) (*Outcome, 
 		}
 		opts.Index = ix
 	}
+	if s.Model == Auto {
+		cmp, err := edge.Compare(ctx, data, cands, opts)
+		if err != nil {
+			return nil, &Error{File: name, Stage: StageFit, Err: err}
+		}
+		o.Comparison = cmp
+		o.Model = cands[cmp.Recommended]
+		o.Result = cmp.Best()
+		return o, nil
+	}
 	res, err := edge.Analyze(ctx, data, opts)
 	if err != nil {
 		return nil, &Error{File: name, Stage: StageFit, Err: err}
 	}
 	o.Result = res
 	return o, nil
+}
+
+// Auto is the model name that asks for a comparison of candidate models.
+const Auto = "auto"
+
+// AutoCandidates are the models compared by Model "auto" when
+// Settings.Candidates is empty, the first being the reference that sets
+// the common window: the direct edge with the exponential (Urbach),
+// Gaussian and free-θ tails and with a constant sub-gap baseline, the
+// direct forbidden edge, the excitonic edge, and, when the sample
+// temperature is known, the indirect edge.
+var AutoCandidates = []string{
+	"direct+urbach", "direct+gauss", "direct+theta", "direct+urbach+const",
+	"direct-forbidden+urbach", "exciton+urbach", "indirect+urbach",
+}
+
+// Models returns the model of s, or for Model "auto" the candidates
+// (Settings.Candidates, else AutoCandidates without the indirect edge when
+// no temperature is given).
+func Models(s Settings) ([]model.Model, error) {
+	cfg := model.Config{Temperature: s.Temperature}
+	if s.Model != Auto {
+		m, err := model.LookupConfig(modelName(s.Model), cfg)
+		if err != nil {
+			return nil, err
+		}
+		return []model.Model{m}, nil
+	}
+	names := s.Candidates
+	if len(names) == 0 {
+		for _, n := range AutoCandidates {
+			if band, _, _, _ := model.ParseName(n); band == "indirect" && !(s.Temperature > 0) {
+				continue
+			}
+			names = append(names, n)
+		}
+	}
+	var ms []model.Model
+	for _, n := range names {
+		m, err := model.LookupConfig(n, cfg)
+		if err != nil {
+			return nil, fmt.Errorf("candidate %s: %w", n, err)
+		}
+		ms = append(ms, m)
+	}
+	if len(ms) == 0 {
+		return nil, fmt.Errorf("%w: no candidate models", model.ErrUnknownModel)
+	}
+	return ms, nil
+}
+
+// read chooses the reader by content, not by the file extension: a file
+// whose first record is ##TITLE= is JCAMP-DX (jcampdx.Sniff), anything else
+// delimited text (io/specio). Column choices (--columns) apply only to
+// delimited text; a JCAMP-DX file has one abscissa and one ordinate.
+func read(b []byte, name string, s Settings) (*specio.Spectrum, error) {
+	if jcampdx.Sniff(b) {
+		if s.XColumn != "" || s.YColumn != "" || s.RColumn != "" {
+			return nil, fmt.Errorf("%s is a JCAMP-DX file: --columns applies to delimited text only", name)
+		}
+		r := jcampdx.NewReader(bytes.NewReader(b), name)
+		r.XUnit, r.YKind = s.XUnit, s.YKind
+		return r.Read()
+	}
+	r := specio.NewReader(bytes.NewReader(b), name)
+	r.XUnit, r.YKind = s.XUnit, s.YKind
+	r.XColumn, r.YColumn, r.RColumn = s.XColumn, s.YColumn, s.RColumn
+	return r.Read()
 }
 
 func modelName(n string) string {

@@ -38,22 +38,24 @@ type Record struct {
 	Amplitude    Num `json:"amplitude"`
 	AmplitudeErr Num `json:"amplitude_err"`
 	// EPEV and EPErrEV are null unless effective masses were given.
-	EPEV        *Num       `json:"ep_ev"`
-	EPErrEV     *Num       `json:"ep_err_ev"`
-	Chi2Reduced Num        `json:"chi2_reduced"`
-	PointsUsed  int        `json:"points_used"`
-	WindowEV    [2]Num     `json:"window_ev"`
-	Warnings    []string   `json:"warnings"`
-	WindowRule  string     `json:"window_rule"`
-	Converged   bool       `json:"converged"`
-	Status      string     `json:"status"`
-	Params      []Param    `json:"params"`
-	Correlation [][]Num    `json:"correlation"`
-	Budgets     []Budget   `json:"budgets"`
-	Conversion  Conversion `json:"conversion"`
-	Tauc        *Linear    `json:"tauc,omitempty"`
-	Urbach      *Linear    `json:"urbach_plot,omitempty"`
-	Provenance  Provenance `json:"provenance"`
+	EPEV          *Num        `json:"ep_ev"`
+	EPErrEV       *Num        `json:"ep_err_ev"`
+	Chi2Reduced   Num         `json:"chi2_reduced"`
+	PointsUsed    int         `json:"points_used"`
+	WindowEV      [2]Num      `json:"window_ev"`
+	Warnings      []string    `json:"warnings"`
+	WindowRule    string      `json:"window_rule"`
+	Converged     bool        `json:"converged"`
+	Status        string      `json:"status"`
+	Params        []Param     `json:"params"`
+	Correlation   [][]Num     `json:"correlation"`
+	Budgets       []Budget    `json:"budgets"`
+	Conversion    Conversion  `json:"conversion"`
+	Comparison    *Comparison `json:"comparison,omitempty"`
+	Constructions []Linear    `json:"constructions"`
+	Tauc          *Linear     `json:"tauc,omitempty"`
+	Urbach        *Linear     `json:"urbach_plot,omitempty"`
+	Provenance    Provenance  `json:"provenance"`
 }
 
 // Param is one fitted parameter with its statistical standard error and
@@ -90,9 +92,37 @@ type Term struct {
 	Note        string `json:"note,omitempty"`
 }
 
+// Comparison lists every candidate of --model auto, ranked by AIC.
+type Comparison struct {
+	Criterion   string      `json:"criterion"`
+	Recommended string      `json:"recommended"`
+	WindowEV    [2]Num      `json:"window_ev"`
+	Candidates  []Candidate `json:"candidates"`
+}
+
+// Candidate is one model of a comparison.
+type Candidate struct {
+	Model    string   `json:"model"`
+	Rank     int      `json:"rank"`
+	K        int      `json:"k"`
+	N        int      `json:"n"`
+	AIC      Num      `json:"aic"`
+	BIC      Num      `json:"bic"`
+	DeltaAIC Num      `json:"delta_aic"`
+	DeltaBIC Num      `json:"delta_bic"`
+	Weight   Num      `json:"akaike_weight"`
+	EgEV     Num      `json:"eg_ev"`
+	EgErrEV  Num      `json:"eg_err_ev"`
+	Chi2Red  Num      `json:"chi2_reduced"`
+	TailOnly bool     `json:"tail_only,omitempty"`
+	Warnings []string `json:"warnings,omitempty"`
+	Error    string   `json:"error,omitempty"`
+}
+
 // Linear is a linearised construction (Tauc or Urbach plot).
 type Linear struct {
 	Name    string `json:"name"`
+	Failed  string `json:"failed,omitempty"`
 	Value   Num    `json:"value_ev"`
 	Err     Num    `json:"err_ev"`
 	Range   [2]Num `json:"range_ev"`
@@ -151,10 +181,8 @@ func FromOutcome(o *scan.Outcome, prov Provenance) *Record {
 	for _, row := range res.Correlation {
 		r.Correlation = append(r.Correlation, nums(row))
 	}
-	for _, key := range []string{"eg", "eu", "amp", "ep"} {
-		if b, ok := res.Budgets[key]; ok {
-			r.Budgets = append(r.Budgets, budget(b))
-		}
+	for _, key := range res.BudgetKeys() {
+		r.Budgets = append(r.Budgets, budget(res.Budgets[key]))
 	}
 	if p, ok := res.Param("eg"); ok {
 		b := res.Budgets["eg"]
@@ -172,10 +200,41 @@ func FromOutcome(o *scan.Outcome, prov Provenance) *Record {
 		v, u := Num(res.EP), Num(b.Combined)
 		r.EPEV, r.EPErrEV = &v, &u
 	}
+	if c := o.Comparison; c != nil {
+		r.Comparison = comparison(c)
+	}
+	for i := range res.Constructions {
+		r.Constructions = append(r.Constructions, *linear(&res.Constructions[i]))
+	}
 	r.Tauc = linear(res.Tauc)
 	r.Urbach = linear(res.Urbach)
 	r.Conversion = conversion(o)
 	return r
+}
+
+func comparison(c *edge.Comparison) *Comparison {
+	out := &Comparison{Criterion: c.Criterion, Recommended: c.Candidates[c.Recommended].Model,
+		WindowEV: [2]Num{Num(c.Window[0]), Num(c.Window[1])}}
+	rank := map[int]int{}
+	for r, i := range c.Ranked {
+		rank[i] = r + 1
+	}
+	nan := Num(math.NaN())
+	for _, r := range c.Ranked {
+		cd := c.Candidates[r]
+		eg, _ := cd.Result.Param("eg")
+		out.Candidates = append(out.Candidates, Candidate{Model: cd.Model, Rank: rank[r], K: cd.K, N: cd.N,
+			AIC: Num(cd.AIC), BIC: Num(cd.BIC), DeltaAIC: Num(cd.DeltaAIC), DeltaBIC: Num(cd.DeltaBIC), Weight: Num(cd.Weight),
+			EgEV: Num(eg.Value), EgErrEV: Num(cd.Result.Budgets["eg"].Combined), Chi2Red: Num(cd.Result.Chi2Red),
+			TailOnly: cd.Result.TailOnly, Warnings: cd.Result.Warnings})
+	}
+	for _, cd := range c.Candidates {
+		if cd.Result == nil {
+			out.Candidates = append(out.Candidates, Candidate{Model: cd.Model, K: cd.K, AIC: nan, BIC: nan, DeltaAIC: nan,
+				DeltaBIC: nan, Weight: nan, EgEV: nan, EgErrEV: nan, Chi2Red: nan, Error: cd.Err})
+		}
+	}
+	return out
 }
 
 func budget(b edge.Budget) Budget {
@@ -190,6 +249,10 @@ func budget(b edge.Budget) Budget {
 func linear(c *edge.Construction) *Linear {
 	if c == nil {
 		return nil
+	}
+	if c.Failed != "" {
+		nan := Num(math.NaN())
+		return &Linear{Name: c.Name, Failed: c.Failed, Value: nan, Err: nan, Range: [2]Num{nan, nan}, Chi2Red: nan}
 	}
 	return &Linear{Name: c.Name, Value: Num(c.Value), Err: Num(c.Err), Range: [2]Num{Num(c.Range[0]), Num(c.Range[1])},
 		Points: c.Points, Chi2Red: Num(c.Chi2Red)}
