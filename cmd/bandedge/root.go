@@ -60,7 +60,7 @@ func newRootCmd(out, errOut io.Writer) *cobra.Command {
 	root.SetOut(out)
 	root.SetErr(errOut)
 	root.SetFlagErrorFunc(func(_ *cobra.Command, err error) error { return &flagError{err} })
-	root.AddCommand(newFitCmd(nil), newDemoCmd(nil), newVerifyCmd(nil), newTrendCmd(nil))
+	root.AddCommand(newFitCmd(nil), newDemoCmd(nil), newVerifyCmd(nil), newTrendCmd(nil), newBatchCmd(nil), newClaimCmd(nil))
 	return root
 }
 
