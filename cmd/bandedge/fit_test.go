@@ -37,6 +37,31 @@ func TestNewFitCmd(t *testing.T) {
 				t.Errorf("columns %q %q", o.Settings.XColumn, o.Settings.YColumn)
 			}
 		}},
+		{name: "material preset fills the index and masses", args: "s.csv --thickness 1um --material GaAs --temperature-err 2", check: func(t *testing.T, o *fitOptions) {
+			s := o.Settings
+			if s.Material != "GaAs" || s.Index != 3.6 || s.ElectronMass != 0.067 || s.HoleMass != 0.51 || s.TemperatureErr != 2 {
+				t.Errorf("settings %+v", s)
+			}
+		}},
+		{name: "flags win over the preset", args: "s.csv --thickness 1um --material GaAs --index 3.5", check: func(t *testing.T, o *fitOptions) {
+			if o.Settings.Index != 3.5 {
+				t.Errorf("index %g, want the flag's 3.5", o.Settings.Index)
+			}
+		}},
+		{name: "auto", args: "s.csv --thickness 1um --model auto", check: func(t *testing.T, o *fitOptions) {
+			if o.Settings.Model != "auto" {
+				t.Errorf("model %q", o.Settings.Model)
+			}
+		}},
+		{name: "tail replaces the model's", args: "s.csv --thickness 1um --model direct+urbach --tail gauss --baseline const", check: func(t *testing.T, o *fitOptions) {
+			if o.Settings.Model != "direct+gauss+const" {
+				t.Errorf("model %q", o.Settings.Model)
+			}
+		}},
+		{name: "indirect without temperature", args: "s.csv --thickness 1um --model indirect", wantErr: true},
+		{name: "unknown material", args: "s.csv --thickness 1um --material unobtainium", wantErr: true},
+		{name: "tail with auto", args: "s.csv --thickness 1um --model auto --tail gauss", wantErr: true},
+		{name: "candidates without auto", args: "s.csv --thickness 1um --candidates direct", wantErr: true},
 		{name: "no unit", args: "s.csv --thickness 1.2", wantErr: true},
 		{name: "negative thickness", args: "s.csv --thickness -1um", wantErr: true},
 		{name: "zero thickness", args: "s.csv --thickness 0um", wantErr: true},

@@ -11,6 +11,7 @@ import (
 	"bandedge/io/quantity"
 	"bandedge/io/specio"
 	"bandedge/model"
+	"bandedge/model/material"
 )
 
 // analysisFlags are the flags that affect the numbers, shared by every
@@ -32,6 +33,8 @@ type analysisFlags struct {
 	Baseline      string
 	Candidates    string
 	Temperature   float64
+	TempErr       float64
+	Material      string
 	Window        string
 	ElectronMass  float64
 	HoleMass      float64
@@ -57,6 +60,8 @@ func (f *analysisFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&f.Baseline, "baseline", "", "sub-gap baseline fitted with the edge: "+strings.Join(model.Baselines(), " or "))
 	fs.StringVar(&f.Candidates, "candidates", "", "comma-separated models compared by --model auto (default: "+strings.Join(scan.AutoCandidates, ", ")+")")
 	fs.Float64Var(&f.Temperature, "temperature", 0, "sample temperature in K (the indirect model needs it)")
+	fs.Float64Var(&f.TempErr, "temperature-err", 0, "standard uncertainty of the sample temperature in K (adds dE_g/dT·u(T) to the budget)")
+	fs.StringVar(&f.Material, "material", "", "material preset ("+strings.Join(material.Names(), ", ")+"): default index and masses, and dE_g/dT for --temperature-err (values from memory of the handbooks named in the README)")
 	fs.StringVar(&f.Window, "window", "", "force the fit window LO:HI in eV, e.g. 1.35:1.65 (default: automatic, see README)")
 	fs.Float64Var(&f.ElectronMass, "electron-mass", 0, "electron effective mass in m₀, for E_P")
 	fs.Float64Var(&f.HoleMass, "hole-mass", 0, "hole effective mass in m₀, for E_P")
@@ -70,6 +75,20 @@ func (f *analysisFlags) register(fs *pflag.FlagSet) {
 func (f *analysisFlags) settings() (scan.Settings, error) {
 	var s scan.Settings
 	var err error
+	if f.Material != "" {
+		m, err := material.Lookup(f.Material)
+		if err != nil {
+			return s, flagErrorf("--material: %v", err)
+		}
+		s.Material = m.Name
+		// The preset fills what the command line leaves out.
+		if f.Index == 0 {
+			f.Index = m.Index
+		}
+		if f.ElectronMass == 0 && f.HoleMass == 0 && m.ElectronMass > 0 {
+			f.ElectronMass, f.HoleMass = m.ElectronMass, m.HoleMass
+		}
+	}
 	if f.Thickness != "" {
 		if s.Thickness, err = quantity.ParseLength(f.Thickness); err != nil {
 			return s, flagErrorf("--thickness: %v", err)
@@ -117,6 +136,10 @@ func (f *analysisFlags) settings() (scan.Settings, error) {
 		return s, flagErrorf("--max-absorbance %g: want a value of at least 0.5", f.MaxAbsorbance)
 	}
 	s.MaxAbsorbance = f.MaxAbsorbance
+	if f.TempErr < 0 || f.TempErr > 500 {
+		return s, flagErrorf("--temperature-err %g K: want a value in [0, 500]", f.TempErr)
+	}
+	s.TemperatureErr = f.TempErr
 	if f.Temperature < 0 || f.Temperature > 5000 {
 		return s, flagErrorf("--temperature %g K: want a temperature in kelvin between 0 and 5000", f.Temperature)
 	}

@@ -52,6 +52,13 @@ type Options struct {
 	// WavelengthErr is the standard uncertainty of the instrument's
 	// wavelength scale in nm (0: no term).
 	WavelengthErr float64
+	// TemperatureErr is the standard uncertainty of the sample temperature
+	// in K (0: no term); DGapDT is dE_g/dT in eV/K and DGapDTSource says
+	// where it came from (a material's Varshni parameters, or a typical
+	// value).
+	TemperatureErr float64
+	DGapDT         float64
+	DGapDTSource   string
 	// ThicknessRelErr is the relative standard uncertainty of the sample
 	// thickness (0: no term). α ∝ 1/d exactly, so it enters the amplitude
 	// and E_P but not E_g or E_U.
@@ -259,6 +266,11 @@ func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
 		c := eg * eg / model.HCeVnm // |dE/dλ| at the edge
 		terms[ieg] = append(terms[ieg], Term{Source: "wavelength scale", Type: TypeB, Input: o.WavelengthErr, InputUnit: "nm",
 			Sensitivity: c, U: c * o.WavelengthErr, Note: "|dE/dλ| = E_g²/(hc) at the edge"})
+	}
+	if o.TemperatureErr > 0 && o.DGapDT != 0 {
+		c := math.Abs(o.DGapDT)
+		terms[ieg] = append(terms[ieg], Term{Source: "sample temperature", Type: TypeB, Input: o.TemperatureErr, InputUnit: "K",
+			Sensitivity: o.DGapDT, U: c * o.TemperatureErr, Note: "dE_g/dT " + o.DGapDTSource})
 	}
 	amp := fr.Params[iamp]
 	if o.ThicknessRelErr > 0 {

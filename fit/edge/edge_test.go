@@ -186,3 +186,22 @@ func TestBudgetGUM(t *testing.T) {
 		t.Errorf("an unknown term must make u_c unknown, got %v", b3.Combined)
 	}
 }
+
+// TestTemperatureTerm: u(T) = 2 K with dE_g/dT = −0.4523 meV/K (GaAs at
+// 300 K from the Varshni parameters of Vurgaftman et al. 2001, from
+// memory) adds 0.905 meV to the gap's budget (GUM sensitivity
+// coefficient times input uncertainty, JCGM 100:2008 §5.1.3).
+func TestTemperatureTerm(t *testing.T) {
+	d := synthData(t, gaAsLike(), 2e-4, 0.002, 3)
+	res, err := Analyze(context.Background(), d, Options{TemperatureErr: 2, DGapDT: -4.523e-4, DGapDTSource: "test"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	term, ok := res.Budgets["eg"].Term("sample temperature")
+	if !ok || !scalar.EqualWithinAbsOrRel(term.U, 9.046e-4, 0, 1e-12) || term.Input != 2 || term.Type != TypeB {
+		t.Errorf("temperature term %+v", term)
+	}
+	if _, ok := res.Budgets["eu"].Term("sample temperature"); ok {
+		t.Error("the temperature term must enter E_g only")
+	}
+}

@@ -206,5 +206,12 @@ func ApplySample(d Defaults, smp *sheet.Sample, sheetName string) (scan.Settings
 		}
 		s.IndexErr = smp.IndexErr.Abs(s.Index)
 	}
+	if smp.TemperatureK != nil {
+		t := *smp.TemperatureK
+		if !(t > 0) || t > 5000 {
+			return s, at("temperature %g K: want a value in (0, 5000]", t)
+		}
+		s.Temperature = t
+	}
 	return s, nil
 }

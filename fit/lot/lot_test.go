@@ -498,6 +498,9 @@ func TestApplySample(t *testing.T) {
 			want: scan.Settings{Thickness: 2e-4, ThicknessRelErr: 0.02, Index: 3.6, IndexErr: 0.05}},
 		{name: "index and relative index error", smp: sheet.Sample{Index: f(3.5), IndexErr: &sheet.Uncertainty{Value: 0.01, Relative: true}},
 			want: scan.Settings{Thickness: 2e-4, ThicknessRelErr: 0.025, Index: 3.5, IndexErr: 0.035}},
+		{name: "temperature", smp: sheet.Sample{TemperatureK: f(77)},
+			want: scan.Settings{Thickness: 2e-4, ThicknessRelErr: 0.025, Index: 3.6, IndexErr: 0.05, Temperature: 77}},
+		{name: "negative temperature", smp: sheet.Sample{TemperatureK: f(-3)}, wantErr: true},
 		{name: "index out of range", smp: sheet.Sample{Index: f(0.5)}, wantErr: true},
 		{name: "error as large as the thickness", smp: sheet.Sample{ThicknessErr: &sheet.Uncertainty{Value: 2e-4}}, wantErr: true},
 	}
@@ -516,7 +519,8 @@ func TestApplySample(t *testing.T) {
 			// 1e-12 relative: unit conversions only.
 			if !scalar.EqualWithinAbsOrRel(got.Thickness, tc.want.Thickness, 0, 1e-12) ||
 				!scalar.EqualWithinAbsOrRel(got.ThicknessRelErr, tc.want.ThicknessRelErr, 0, 1e-12) ||
-				got.Index != tc.want.Index || !scalar.EqualWithinAbsOrRel(got.IndexErr, tc.want.IndexErr, 0, 1e-12) {
+				got.Index != tc.want.Index || !scalar.EqualWithinAbsOrRel(got.IndexErr, tc.want.IndexErr, 0, 1e-12) ||
+				got.Temperature != tc.want.Temperature {
 				t.Errorf("got %+v, want %+v", got, tc.want)
 			}
 		})

@@ -21,6 +21,7 @@ import (
 	"bandedge/io/jcampdx"
 	"bandedge/io/specio"
 	"bandedge/model"
+	"bandedge/model/material"
 	"bandedge/model/optics"
 )
 
@@ -100,6 +101,12 @@ type Settings struct {
 	// Temperature is the sample temperature in K (0: not given). The
 	// indirect model needs it for its phonon occupation.
 	Temperature float64 `json:"temperature_k,omitempty"`
+	// TemperatureErr is the standard uncertainty of the sample temperature
+	// in K (0: no term in the budget).
+	TemperatureErr float64 `json:"temperature_err_k,omitempty"`
+	// Material names a preset (model/material) whose Varshni parameters
+	// give dE_g/dT for the temperature term; "" uses the typical value.
+	Material string `json:"material,omitempty"`
 	// WavelengthErr is the wavelength-scale standard uncertainty in nm.
 	WavelengthErr float64 `json:"wavelength_err_nm,omitempty"`
 	// Coverage is the coverage factor k (0: edge.DefaultCoverage).
@@ -172,6 +179,10 @@ func Analyze(ctx context.Context, name string, b []byte, s Settings) (*Outcome, 
 		WavelengthErr:   s.WavelengthErr,
 		ThicknessRelErr: s.ThicknessRelErr,
 	}
+	if s.TemperatureErr > 0 {
+		opts.TemperatureErr = s.TemperatureErr
+		opts.DGapDT, opts.DGapDTSource = gapSlope(s)
+	}
 	if s.ElectronMass > 0 && s.HoleMass > 0 && s.Index > 0 {
 		opts.Kane = &edge.KaneInputs{Index: s.Index, ElectronMass: s.ElectronMass, HoleMass: s.HoleMass, MassRelErr: s.MassRelErr}
 	}
@@ -201,6 +212,21 @@ func Analyze(ctx context.Context, name string, b []byte, s Settings) (*Outcome, 
 	}
 	o.Result = res
 	return o, nil
+}
+
+// gapSlope returns dE_g/dT for the temperature term and where it came
+// from: the Varshni parameters of s.Material at s.Temperature (300 K when
+// not given), else material.TypicalDGapDT.
+func gapSlope(s Settings) (float64, string) {
+	t := s.Temperature
+	at := fmt.Sprintf("at %g K", t)
+	if !(t > 0) {
+		t, at = 300, "at 300 K (no --temperature given)"
+	}
+	if m, err := material.Lookup(s.Material); err == nil && s.Material != "" {
+		return m.DGapDT(t), fmt.Sprintf("= %.3g meV/K from the Varshni parameters of %s %s (%s)", 1e3*m.DGapDT(t), m.Name, at, m.Source)
+	}
+	return material.TypicalDGapDT, fmt.Sprintf("= %.3g meV/K, a typical value for III–V semiconductors near room temperature (common practice; give --material for a material's own)", 1e3*material.TypicalDGapDT)
 }
 
 // Auto is the model name that asks for a comparison of candidate models.
