@@ -21,10 +21,11 @@ type Candidate struct {
 	K int `json:"k"`
 	N int `json:"n"`
 	// AIC and BIC are the information criteria (see Compare); DeltaAIC
-	// and DeltaBIC their differences to the smallest; Weight the Akaike
-	// weight.
+	// and DeltaBIC their differences to the smallest; QAIC the
+	// overdispersion-corrected AIC; Weight the Akaike weight.
 	AIC      float64 `json:"aic"`
 	BIC      float64 `json:"bic"`
+	QAIC     float64 `json:"qaic"`
 	DeltaAIC float64 `json:"delta_aic"`
 	DeltaBIC float64 `json:"delta_bic"`
 	Weight   float64 `json:"akaike_weight"`
@@ -34,15 +35,18 @@ type Candidate struct {
 type Comparison struct {
 	// Candidates in the order given.
 	Candidates []Candidate
-	// Ranked holds the indices of the fitted candidates, by AIC.
+	// Ranked holds the indices of the fitted candidates, by QAIC (AIC
+	// when ĉ = 1).
 	Ranked []int
-	// Recommended is the index of the candidate with the smallest AIC.
+	// Recommended is the index of the candidate with the smallest QAIC.
 	Recommended int
 	// Window is the common window (eV), chosen by the automatic rule for
 	// the first candidate.
 	Window [2]float64
 	// Criterion explains the comparison in one line.
 	Criterion string
+	// CHat is the overdispersion factor ĉ (1 when none).
+	CHat float64
 }
 
 // ErrNoCandidate is returned when no candidate could be fitted.
@@ -62,9 +66,15 @@ var ErrNoCandidate = errors.New("edge: no candidate model could be fitted")
 //
 //	AIC = n·ln(χ²/n) + 2k,   BIC = n·ln(χ²/n) + k·ln n.
 //
-// Akaike weights w_i = exp(−ΔAIC_i/2)/Σ_j exp(−ΔAIC_j/2) (Burnham &
-// Anderson, Model Selection and Multimodel Inference, 2nd ed., 2002,
-// §2.9). The recommended candidate's E_g budget gains a "model choice"
+// When even the most general candidate (the one with most parameters)
+// leaves residuals larger than the noise, ĉ = its χ²_red > 1, the
+// comparison uses the quasi-likelihood form for overdispersed data,
+// QAIC = χ²/ĉ + 2k (Burnham & Anderson, Model Selection and Multimodel
+// Inference, 2nd ed., 2002, §6.2; from memory), so that systematic misfit
+// common to all candidates does not masquerade as decisive evidence; AIC
+// and BIC are reported as they are. Akaike weights
+// w_i = exp(−Δ_i/2)/Σ_j exp(−Δ_j/2) (ibid., §2.9) come from QAIC when
+// ĉ > 1, else from AIC. The recommended candidate's E_g budget gains a "model choice"
 // term: the spread of the candidates' gaps about the recommended one,
 // weighted by their Akaike weights,
 //
@@ -98,6 +108,9 @@ func Compare(ctx context.Context, d Data, cands []model.Model, o Options) (*Comp
 				return nil, err
 			}
 		}
+		if err == nil && i > 0 {
+			res.WindowRule = fmt.Sprintf("common window of the comparison (the automatic rule for %s)", cands[0].Name())
+		}
 		if err != nil {
 			cand.Err = err.Error()
 			cand.AIC, cand.BIC = math.NaN(), math.NaN()
@@ -115,35 +128,61 @@ func Compare(ctx context.Context, d Data, cands []model.Model, o Options) (*Comp
 		}
 		c.Candidates = append(c.Candidates, cand)
 	}
-	minA, minB := math.Inf(1), math.Inf(1)
+	// Overdispersion: ĉ from the candidate with the most parameters (the
+	// lowest χ² among equals).
+	g := -1
 	for i, cd := range c.Candidates {
 		if cd.Result == nil {
 			continue
 		}
 		c.Ranked = append(c.Ranked, i)
-		minA = math.Min(minA, cd.AIC)
-		minB = math.Min(minB, cd.BIC)
+		if g < 0 || cd.K > c.Candidates[g].K || (cd.K == c.Candidates[g].K && cd.Result.Fit.SSR < c.Candidates[g].Result.Fit.SSR) {
+			g = i
+		}
 	}
 	if len(c.Ranked) == 0 {
 		return nil, ErrNoCandidate
+	}
+	c.CHat = 1
+	if gr := c.Candidates[g].Result; !d.RelativeSigma && gr.DoF > 0 {
+		c.CHat = math.Max(1, gr.Fit.SSR/float64(gr.DoF))
+	} else if d.RelativeSigma && gr.DoF > 0 {
+		// Relative weights: the likelihood above already estimates the
+		// scale; ĉ stays 1.
+		c.CHat = 1
+	}
+	minA, minB, minQ := math.Inf(1), math.Inf(1), math.Inf(1)
+	for _, i := range c.Ranked {
+		cd := &c.Candidates[i]
+		cd.QAIC = cd.AIC
+		if c.CHat > 1 {
+			cd.QAIC = cd.Result.Fit.SSR/c.CHat + 2*float64(cd.K)
+		}
+		minA = math.Min(minA, cd.AIC)
+		minB = math.Min(minB, cd.BIC)
+		minQ = math.Min(minQ, cd.QAIC)
 	}
 	var sum float64
 	for _, i := range c.Ranked {
 		cd := &c.Candidates[i]
 		cd.DeltaAIC = cd.AIC - minA
 		cd.DeltaBIC = cd.BIC - minB
-		cd.Weight = math.Exp(-cd.DeltaAIC / 2)
+		cd.Weight = math.Exp(-(cd.QAIC - minQ) / 2)
 		sum += cd.Weight
 	}
 	for _, i := range c.Ranked {
 		c.Candidates[i].Weight /= sum
 	}
 	sort.SliceStable(c.Ranked, func(a, b int) bool {
-		return c.Candidates[c.Ranked[a]].AIC < c.Candidates[c.Ranked[b]].AIC
+		return c.Candidates[c.Ranked[a]].QAIC < c.Candidates[c.Ranked[b]].QAIC
 	})
 	c.Recommended = c.Ranked[0]
-	c.Criterion = fmt.Sprintf("lowest AIC over %d candidates on the common window %.4f–%.4f eV; Akaike weights after Burnham & Anderson (2002)",
-		len(c.Ranked), c.Window[0], c.Window[1])
+	crit := "AIC"
+	if c.CHat > 1 {
+		crit = fmt.Sprintf("QAIC (overdispersion ĉ = %.3g)", c.CHat)
+	}
+	c.Criterion = fmt.Sprintf("lowest %s over %d candidates on the common window %.4f–%.4f eV; Akaike weights after Burnham & Anderson (2002)",
+		crit, len(c.Ranked), c.Window[0], c.Window[1])
 	c.addModelTerm(o)
 	return c, nil
 }
