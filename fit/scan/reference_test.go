@@ -43,39 +43,39 @@ func TestReferenceMaterials(t *testing.T) {
 			name: "Si, Green 2008", file: "Si_Green2008.csv",
 			s:    Settings{Model: "indirect", Temperature: 300},
 			want: 1.12, tol: 0.03,
-			why:  "indirect (Macfarlane & Roberts 1955) without a tail over the automatic window E_g to E_g + 0.25 eV: the compilation has no sub-gap tail to broaden; one effective phonon stands for the TA and TO branches, which pulls E_g some 15 meV low",
+			why: "indirect (Macfarlane & Roberts 1955) without a tail over the automatic window E_g to E_g + 0.25 eV: the compilation has no sub-gap tail to broaden; one effective phonon stands for the TA and TO branches, which pulls E_g some 15 meV low",
 		},
 		{
 			name: "Si, Schinke 2015", file: "Si_Schinke2015.csv",
 			s:    Settings{Model: "indirect", Temperature: 295},
 			want: 1.12, tol: 0.03,
-			why:  "as Green 2008; measured at 295 K (the file's own conditions), the handbook value is for 300 K (about 2 meV lower)",
+			why: "as Green 2008; measured at 295 K (the file's own conditions), the handbook value is for 300 K (about 2 meV lower)",
 		},
 		{
 			name: "Ge, Nunley 2016", file: "Ge_Nunley2016.csv",
 			s:    Settings{Model: "indirect", Temperature: 300, Window: [2]float64{0.60, 0.78}},
 			want: 0.66, tol: 0.03,
-			why:  "indirect without a tail; the window is forced to end at 0.78 eV, below the direct Γ edge at 0.80 eV whose absorption (α jumps from 2e2 to 4e3 cm⁻¹) would swamp the indirect edge, and to start at 0.60 eV where α is still above 0.1 cm⁻¹",
+			why: "indirect without a tail; the window is forced to end at 0.78 eV, below the direct Γ edge at 0.80 eV whose absorption (α jumps from 2e2 to 4e3 cm⁻¹) would swamp the indirect edge, and to start at 0.60 eV where α is still above 0.1 cm⁻¹",
 		},
 		{
 			name: "GaAs, Papatryfonos 2021", file: "GaAs_Papatryfonos2021.csv",
 			s:    Settings{Model: "direct+urbach"},
 			want: 1.42, tol: 0.04,
-			why:  "direct edge with an Urbach tail over the automatic window; the ellipsometric edge sits 30–60 meV above transmission data and the grid is 0.02 eV, so the issue allows 0.04 eV",
+			why: "direct edge with an Urbach tail over the automatic window; the ellipsometric edge sits 30–60 meV above transmission data and the grid is 0.02 eV, so the issue allows 0.04 eV",
 		},
 		{
 			name: "GaAs at 873 K, Gadras 2025", file: "GaAs_Gadras2025_873K.csv",
-			s:    Settings{Model: "direct+urbach", Temperature: 873},
+			s: Settings{Model: "direct+urbach", Temperature: 873},
 			// 1.519 − 0.5405e-3·873²/(873 + 204) = 1.1365 eV: Varshni with
 			// the parameters of Vurgaftman et al. (2001, from memory).
 			want: 1.1365, tol: 0.03,
-			why:  "direct edge with an Urbach tail at 600 °C; the reference is the Varshni extrapolation, itself uncertain by some 10 meV at 873 K",
+			why: "direct edge with an Urbach tail at 600 °C; the reference is the Varshni extrapolation, itself uncertain by some 10 meV at 873 K",
 		},
 		{
 			name: "CdTe film, Treharne 2011", file: "CdTe_Treharne2011.csv",
 			s:    Settings{Model: "direct+urbach"},
 			want: 1.5, tol: 0.07,
-			why:  "sputtered polycrystalline film from a multi-oscillator ellipsometry model: broad edge and a long sub-gap tail; the handbook value itself spans 1.44–1.50 eV, hence the wider band",
+			why: "sputtered polycrystalline film from a multi-oscillator ellipsometry model: broad edge and a long sub-gap tail; the handbook value itself spans 1.44–1.50 eV, hence the wider band",
 		},
 	}
 	for _, tc := range tests {
