@@ -9,8 +9,10 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"bandedge/fit/lot"
 	"bandedge/fit/scan"
 	"bandedge/fit/trend"
+	"bandedge/io/sheet"
 	"bandedge/io/quantity"
 	"bandedge/io/results"
 	"bandedge/reports"
@@ -21,6 +23,7 @@ type trendOptions struct {
 	Out, ErrOut io.Writer
 	Files       []string
 	From        string
+	Samples     string
 	JSON        bool
 	Report      string
 	Flags       analysisFlags
@@ -34,7 +37,7 @@ func newTrendCmd(runF func(context.Context, *trendOptions) error) *cobra.Command
 		Use:   "trend FILE...",
 		Short: "Fit E_g(T) over scans taken at several temperatures",
 		Long: "trend fits the edge of every scan (with the same flags as fit), takes each scan's temperature\n" +
-			"from its file name (e.g. GaAs_300K.csv), and fits the gaps against temperature with the\n" +
+			"from its file name (e.g. GaAs_300K.csv) or a sample sheet, and fits the gaps against temperature with the\n" +
 			"Varshni (1967) and Bose–Einstein (O'Donnell & Chen 1991) forms, weighting each gap by its\n" +
 			"combined standard uncertainty.",
 		Example: "  bandedge trend scans/W07_*K.csv --thickness 1.2um --index 3.6 --report trend.png",
@@ -42,8 +45,14 @@ func newTrendCmd(runF func(context.Context, *trendOptions) error) *cobra.Command
 		RunE: func(cmd *cobra.Command, args []string) error {
 			opts.Out, opts.ErrOut = cmd.OutOrStdout(), cmd.ErrOrStderr()
 			opts.Files = args
-			if opts.From != "name" {
-				return flagErrorf("--temperature-from %q: only \"name\" is supported (the temperature in kelvin written in the file name, e.g. _300K)", opts.From)
+			switch opts.From {
+			case "name":
+			case "column":
+				if opts.Samples == "" {
+					return flagErrorf("--temperature-from column reads the temperature_k (or temperature_c) column of a sample sheet: give --samples sheet.csv")
+				}
+			default:
+				return flagErrorf("--temperature-from %q: want name (kelvin in the file name, e.g. _300K) or column (the sample sheet's temperature column)", opts.From)
 			}
 			s, err := opts.Flags.settings()
 			if err != nil {
@@ -60,7 +69,8 @@ func newTrendCmd(runF func(context.Context, *trendOptions) error) *cobra.Command
 		},
 	}
 	opts.Flags.register(cmd.Flags())
-	cmd.Flags().StringVar(&opts.From, "temperature-from", "name", "where each scan's temperature comes from: name (kelvin in the file name, e.g. _300K)")
+	cmd.Flags().StringVar(&opts.From, "temperature-from", "name", "where each scan's temperature comes from: name (kelvin in the file name, e.g. _300K) or column (the sample sheet's temperature column)")
+	cmd.Flags().StringVar(&opts.Samples, "samples", "", "sample sheet: per-scan temperature (with --temperature-from column), thickness and index, as for batch")
 	cmd.Flags().BoolVar(&opts.JSON, "json", false, "print the result as JSON")
 	cmd.Flags().StringVar(&opts.Report, "report", "", "write a PNG of E_g(T) with the fits to this path")
 	return cmd
@@ -93,18 +103,40 @@ type trendFit struct {
 }
 
 func runTrend(ctx context.Context, opts *trendOptions) error {
+	var samples *sheet.Samples
+	if opts.Samples != "" {
+		var err error
+		if samples, err = readSheet(opts.Samples); err != nil {
+			return err
+		}
+	}
 	var pts []trend.Point
 	var failures []string
 	for _, f := range opts.Files {
 		if err := ctx.Err(); err != nil {
 			return err
 		}
-		t, ok := quantity.TemperatureFromName(f)
+		s := opts.Settings
+		if samples != nil {
+			if smp, ok := samples.Lookup(f); ok {
+				var err error
+				if s, err = lot.ApplySample(lot.Defaults{Settings: s}, &smp, opts.Samples); err != nil {
+					failures = append(failures, err.Error())
+					continue
+				}
+			}
+		}
+		t, ok := s.Temperature, s.Temperature > 0
+		if opts.From == "name" {
+			t, ok = quantity.TemperatureFromName(f)
+		}
 		if !ok {
-			failures = append(failures, fmt.Sprintf("%s: no temperature in the file name (write it in kelvin, e.g. _300K)", f))
+			failures = append(failures, fmt.Sprintf("%s: no temperature (%s)", f, map[string]string{
+				"name":   "write it in kelvin in the file name, e.g. _300K",
+				"column": "no temperature for this file in " + opts.Samples,
+			}[opts.From]))
 			continue
 		}
-		s := opts.Settings
 		s.Temperature = t
 		o, err := scan.AnalyzeFile(ctx, f, s)
 		if err != nil {

@@ -31,7 +31,8 @@ func TestNewTrendCmd(t *testing.T) {
 	if len(got.Files) != 2 || got.From != "name" || !got.JSON || got.Settings.Thickness != 2e-4 {
 		t.Errorf("options %+v", got)
 	}
-	for _, bad := range []string{"--temperature-from sheet a.csv --thickness 1um", "--thickness 1um", "a.csv --thickness 1um --report x.svg"} {
+	for _, bad := range []string{"--temperature-from sheet a.csv --thickness 1um", "--temperature-from column a.csv --thickness 1um",
+		"--thickness 1um", "a.csv --thickness 1um --report x.svg"} {
 		cmd := newTrendCmd(func(context.Context, *trendOptions) error { return nil })
 		cmd.SetArgs(strings.Fields(bad))
 		cmd.SetOut(&bytes.Buffer{})
@@ -74,6 +75,24 @@ func TestRunTrend(t *testing.T) {
 		}
 		files = append(files, f)
 	}
+	// The same series with the temperatures from a sample sheet instead of
+	// the file names.
+	sheetPath := filepath.Join(dir, "sheet.csv")
+	var sb strings.Builder
+	sb.WriteString("file,temperature_k\n")
+	for _, f := range files {
+		temp, _ := strings.CutSuffix(strings.TrimPrefix(filepath.Base(f), "film_"), "K.csv")
+		fmt.Fprintf(&sb, "%s,%s\n", filepath.Base(f), temp)
+	}
+	if err := os.WriteFile(sheetPath, []byte(sb.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var out2, errOut2 bytes.Buffer
+	args2 := append([]string{"trend"}, files...)
+	args2 = append(args2, "--thickness", "2um", "--index", "3.6", "--json", "--temperature-from", "column", "--samples", sheetPath)
+	if code := run(context.Background(), args2, &out2, &errOut2); code != exitOK {
+		t.Fatalf("column mode: exit %d: %s", code, errOut2.String())
+	}
 	report := filepath.Join(dir, "trend.png")
 	var out, errOut bytes.Buffer
 	args := append([]string{"trend"}, files...)
@@ -96,5 +115,14 @@ func TestRunTrend(t *testing.T) {
 	}
 	if st, err := os.Stat(report); err != nil || st.Size() < 10000 {
 		t.Errorf("report: %v", err)
+	}
+	var rec2 trendRecord
+	if err := json.Unmarshal(out2.Bytes(), &rec2); err != nil {
+		t.Fatal(err)
+	}
+	for i := range rec.Fits {
+		if rec2.Fits[i].Eg300 != rec.Fits[i].Eg300 {
+			t.Errorf("%s: E_g(300 K) %v from the sheet, %v from the names", rec.Fits[i].Form, rec2.Fits[i].Eg300, rec.Fits[i].Eg300)
+		}
 	}
 }
