@@ -12,9 +12,9 @@ import (
 	"bandedge/fit/lot"
 	"bandedge/fit/scan"
 	"bandedge/fit/trend"
-	"bandedge/io/sheet"
 	"bandedge/io/quantity"
 	"bandedge/io/results"
+	"bandedge/io/sheet"
 	"bandedge/reports"
 )
 
