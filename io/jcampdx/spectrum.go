@@ -195,20 +195,8 @@ func (p *parser) spectrum() (*specio.Spectrum, error) {
 		}
 	}
 	if s.Kind == specio.Transmittance {
-		var neg, over int
-		for _, v := range y {
-			if v <= 0 {
-				neg++
-			}
-			if v > 1 {
-				over++
-			}
-		}
-		if neg > 0 {
-			p.note("%d transmittance values ≤ 0 kept as read (noise near zero transmission)", neg)
-		}
-		if over > 0 {
-			p.note("%d transmittance values above 100 %% kept as read (noise near full transmission)", over)
+		for _, n := range specio.TransmittanceNoiseNotes(y) {
+			p.note("%s", n)
 		}
 	}
 	n := len(x)

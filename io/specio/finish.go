@@ -1,6 +1,7 @@
 package specio
 
 import (
+	"fmt"
 	"math"
 	"slices"
 	"strings"
@@ -38,20 +39,8 @@ func (p *parser) finish(d *data) (*Spectrum, error) {
 		}
 	}
 	if s.Kind == Transmittance {
-		var neg, over int
-		for _, v := range d.y {
-			if v <= 0 {
-				neg++
-			}
-			if v > 1 {
-				over++
-			}
-		}
-		if neg > 0 {
-			p.note("%d transmittance values ≤ 0 kept as read (noise near zero transmission)", neg)
-		}
-		if over > 0 {
-			p.note("%d transmittance values above 100 %% kept as read (noise near full transmission)", over)
+		for _, n := range TransmittanceNoiseNotes(d.y) {
+			p.note("%s", n)
 		}
 	}
 	if p.ri >= 0 {
@@ -262,4 +251,28 @@ func (p *parser) rPercent(d *data) (bool, error) {
 		return false, p.errf(st.minLine, st.minCol, ErrRange, "reflectance %s is below %s", fmtG(st.min), fmtG(scale*fracMin))
 	}
 	return pct == pctPercent, nil
+}
+
+// TransmittanceNoiseNotes returns the notes that say how many values of a
+// transmittance (fraction) are at or below zero or above one: instrument
+// noise near zero and full transmission, kept as read. Readers of other
+// formats use it so every reader says the same.
+func TransmittanceNoiseNotes(t []float64) []string {
+	var neg, over int
+	for _, v := range t {
+		if v <= 0 {
+			neg++
+		}
+		if v > 1 {
+			over++
+		}
+	}
+	var notes []string
+	if neg > 0 {
+		notes = append(notes, fmt.Sprintf("%d transmittance values ≤ 0 kept as read (noise near zero transmission)", neg))
+	}
+	if over > 0 {
+		notes = append(notes, fmt.Sprintf("%d transmittance values above 100 %% kept as read (noise near full transmission)", over))
+	}
+	return notes
 }
