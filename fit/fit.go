@@ -63,7 +63,9 @@ type Func struct {
 	M int
 	// Residuals fills dst (length M) with r(p). It must not modify p.
 	Residuals func(dst, p []float64)
-	// Jacobian, when not nil, fills dst (M × len(p)) with ∂r_i/∂p_j.
+	// Jacobian, when not nil, fills dst (M × len(p), zeroed before each
+	// call) with ∂r_i/∂p_j. dst is recycled between calls and runs: it
+	// must not be kept.
 	// When nil, LeastSquares uses central finite differences with a step
 	// scaled to each parameter.
 	Jacobian func(dst *mat.Dense, p []float64)

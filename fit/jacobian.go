@@ -8,7 +8,7 @@ import "math"
 // Optimization and Nonlinear Equations, Prentice-Hall 1983, section 5.6).
 const cbrtEpsilon = 6.0554544523933395e-06
 
-// fdJacobian fills w.jac with a finite-difference Jacobian at x, where
+// fdJacobian fills w.jt (Jᵀ, see work) with a finite-difference Jacobian at x, where
 // fx = r(x), and reports whether every residual it needed was finite.
 //
 // We do not use gonum's fd.Jacobian here: it takes one step (Settings.Step)
@@ -32,7 +32,7 @@ const cbrtEpsilon = 6.0554544523933395e-06
 // narrower than that, a forward or backward difference over the room left
 // is used, and a parameter with Lower = Upper gets a zero column.
 func (w *work) fdJacobian(x, fx []float64) bool {
-	m, n := w.m, w.n
+	n := w.n
 	copy(w.xfd, x)
 	for j := range n {
 		xj := x[j]
@@ -57,9 +57,7 @@ func (w *work) fdJacobian(x, fx []float64) bool {
 			up, down := hi-xj, xj-lo
 			switch {
 			case up <= 0 && down <= 0:
-				for i := range m {
-					w.jacRaw[i*n+j] = 0
-				}
+				clear(w.jtCol(j))
 				ok = true
 			case up >= down:
 				hh := math.Min(h, up)
@@ -85,11 +83,10 @@ func (w *work) fdJacobian(x, fx []float64) bool {
 // The coefficient and offset slices have at most two entries and are not
 // retained, so the compiler keeps them on the stack.
 func (w *work) fdColumn(j int, xj float64, c, d []float64, scale float64, fx []float64) bool {
-	m, n := w.m, w.n
 	bufs := [2][]float64{w.fp, w.fm}
 	for k := range c {
 		w.xfd[j] = xj + d[k]
-		if !w.eval(bufs[k], w.xfd) {
+		if _, ok := w.eval(bufs[k], w.xfd); !ok {
 			return false
 		}
 	}
@@ -97,7 +94,8 @@ func (w *work) fdColumn(j int, xj float64, c, d []float64, scale float64, fx []f
 	for _, ck := range c {
 		c0 -= ck
 	}
-	for i := range m {
+	col := w.jtCol(j)
+	for i := range col {
 		s := 0.0
 		for k, ck := range c {
 			s += ck * bufs[k][i]
@@ -105,7 +103,7 @@ func (w *work) fdColumn(j int, xj float64, c, d []float64, scale float64, fx []f
 		if fx != nil {
 			s += c0 * fx[i]
 		}
-		w.jacRaw[i*n+j] = scale * s
+		col[i] = scale * s
 	}
 	return true
 }

@@ -7,7 +7,7 @@ import (
 	"math"
 	"time"
 
-	"gonum.org/v1/gonum/blas/blas64"
+	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/optimize"
 )
@@ -68,7 +68,9 @@ func LeastSquares(ctx context.Context, f Func, init []float64, s *Settings) (*Re
 	if err := validateFunc(f, init, s); err != nil {
 		return nil, err
 	}
-	return solve(ctx, f, init, s, f.M-len(init))
+	w := getWork(f.M, len(init))
+	defer putWork(w)
+	return solve(ctx, w, f, init, s, f.M-len(init))
 }
 
 // validateFunc checks a Func and a start before anything is evaluated.
@@ -111,9 +113,10 @@ func validateFunc(f Func, init []float64, s *Settings) error {
 	return nil
 }
 
-// solve runs the strategies and assembles the Result; dof is the degrees of
-// freedom to report (Fit discounts zero-weight points).
-func solve(ctx context.Context, f Func, init []float64, s *Settings, dof int) (*Result, error) {
+// solve runs the strategies in w (from getWork(f.M, len(init)); w.rowScale
+// may be set) and assembles the Result; dof is the degrees of freedom to
+// report (Fit discounts zero-weight points).
+func solve(ctx context.Context, w *work, f Func, init []float64, s *Settings, dof int) (*Result, error) {
 	start := time.Now()
 	n := len(init)
 	cfg := newConfig(s, n)
@@ -121,17 +124,18 @@ func solve(ctx context.Context, f Func, init []float64, s *Settings, dof int) (*
 	if s != nil {
 		typ = s.TypicalScale
 	}
-	w := newWork(f, init, typ)
+	w.init(f, init, typ)
 
-	f0 := make([]float64, f.M)
-	if !w.eval(f0, init) {
+	f0 := w.f0
+	if _, ok := w.eval(f0, init); !ok {
 		return nil, fmt.Errorf("residuals at the start: %w", ErrNonFinite)
 	}
 	if !w.jacobian(init, f0) {
 		return nil, fmt.Errorf("Jacobian at the start: %w", ErrNonFinite)
 	}
 
-	var runs []run
+	var runsBuf [3]run
+	runs := runsBuf[:0]
 	var best *run
 	for k, st := range strategies {
 		if k > 0 && (cfg.noFallback || !best.degenerate) {
@@ -221,7 +225,7 @@ func (w *work) assess(rn *run, dof int, absolute bool) {
 		return
 	}
 	r := Result{SSR: rn.ssr, DoF: dof, Cond: math.Inf(1)}
-	rn.covErr = r.covariance(w.jac, absolute)
+	rn.covErr = r.covariance(w.jt, w.m, w.n, absolute)
 	rn.cov, rn.stdErr, rn.cond = r.Cov, r.StdErr, r.Cond
 	if rn.status.Early() || math.IsNaN(rn.ssr) || errors.Is(rn.covErr, ErrSingular) {
 		return
@@ -229,7 +233,7 @@ func (w *work) assess(rn *run, dof int, absolute bool) {
 	sens := w.wa1
 	smax := 0.0
 	for j := range w.n {
-		sens[j] = math.Abs(rn.x[j]) * blas64.Nrm2(blas64.Vector{N: w.m, Inc: w.n, Data: w.jacRaw[j:]})
+		sens[j] = math.Abs(rn.x[j]) * w.colnrm[j] // ‖J_j‖ at rn.x
 		smax = math.Max(smax, sens[j])
 	}
 	for j := range w.n {
@@ -243,7 +247,8 @@ func (w *work) assess(rn *run, dof int, absolute bool) {
 	rn.degenerate = false
 }
 
-// covariance sets Cov, StdErr and Cond from the Jacobian j at the optimum:
+// covariance sets Cov, StdErr and Cond from the Jacobian at the optimum,
+// given transposed (jt, n×m row-major: column j of J is jt[j*m:j*m+m]):
 //
 //	Cov = s²·(JᵀJ)⁻¹,   s² = SSR/DoF (absolute false) or 1 (absolute true).
 //
@@ -252,12 +257,16 @@ func (w *work) assess(rn *run, dof int, absolute bool) {
 // do not depend on the units of the parameters (van der Sluis, Numer. Math.
 // 14, 14, 1969: this diagonal scaling is within a factor √n of the best).
 // A failed factorisation, a condition number above mat.ConditionTolerance
-// (10¹⁶) or a zero column leave Cov nil and StdErr NaN and return an error
+// (10¹⁶), a zero column or a variance that overflows leave Cov nil and StdErr NaN and return an error
 // wrapping ErrSingular; Cond stays +Inf when the factorisation failed.
-func (res *Result) covariance(j *mat.Dense, absolute bool) error {
-	_, n := j.Dims()
+func (res *Result) covariance(jt []float64, m, n int, absolute bool) error {
 	jtj := mat.NewSymDense(n, nil)
-	jtj.SymOuterK(1, j.T())
+	for i := range n {
+		ci := jt[i*m : i*m+m]
+		for k := i; k < n; k++ {
+			jtj.SetSym(i, k, floats.Dot(ci, jt[k*m:k*m+m]))
+		}
+	}
 	d := make([]float64, n)
 	for i := range n {
 		v := jtj.At(i, i)
@@ -290,6 +299,11 @@ func (res *Result) covariance(j *mat.Dense, absolute bool) error {
 	for i := range n {
 		for k := i; k < n; k++ {
 			inv.SetSym(i, k, s2*inv.At(i, k)/(d[i]*d[k]))
+		}
+	}
+	for i := range n { // scaled back, a variance can overflow (an amplitude run to 1e135)
+		if v := inv.At(i, i); !(v >= 0) || math.IsInf(v, 1) {
+			return fmt.Errorf("variance of parameter %d is %v: %w", i, v, ErrSingular)
 		}
 	}
 	res.Cov = inv

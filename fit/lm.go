@@ -3,11 +3,10 @@ package fit
 import (
 	"context"
 	"math"
+	"math/bits"
+	"sync"
 
-	"gonum.org/v1/gonum/blas"
-	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/floats"
-	"gonum.org/v1/gonum/lapack/lapack64"
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/optimize"
 )
@@ -97,8 +96,11 @@ func newConfig(s *Settings, n int) config {
 	return c
 }
 
-// work holds every buffer of one LeastSquares call. It is allocated once per
-// call, so the iterations themselves do not allocate.
+// work holds every buffer of one LeastSquares call, so that the iterations
+// themselves do not allocate. Works are recycled through workPool between
+// calls (a batch fits thousands of spectra of similar size): getWork
+// reslices a recycled work when its capacity suffices. Nothing a Result
+// returns points into a work.
 type work struct {
 	m, n      int
 	f         Func
@@ -107,20 +109,28 @@ type work struct {
 	hasBounds bool
 	typ       []float64 // finite-difference typical scales
 
-	jac    *mat.Dense // m×n Jacobian at jacX
-	jacRaw []float64  // jac's backing data, stride n
-	jacX   []float64  // the point jac was evaluated at
-	jacOK  bool       // jac holds a finite J(jacX)
+	// rowScale, when not nil (length m), multiplies row i of the Jacobian
+	// the user's function writes (Fit: −√w_i), applied while it is copied
+	// into jt.
+	rowScale []float64
 
-	// jt is Jᵀ (n×m row-major); factorize overwrites it with the LQ
-	// factorisation of its free rows.
+	jac    *mat.Dense // m×n: what f.Jacobian writes (nil for finite differences)
+	jacRaw []float64  // jac's backing data, stride n (recycled)
+	// jt is the Jacobian J(jacX) transposed, n×m row-major: column j of J
+	// is jt[j*m : j*m+m], contiguous, which is the layout every later
+	// operation wants (column norms, Jᵀr, the Householder QR, JᵀJ).
 	jt    []float64
-	tau   []float64
-	tau2  []float64 // reflectors of the pivoted QR of R₀
-	jpvt  []int
-	lwork int
-	lwk   []float64
-	qtb   []float64 // Qᵀr, length m (first nf entries used)
+	jacX  []float64 // the point jt was evaluated at
+	jacOK bool      // jt holds a finite J(jacX)
+
+	// qr is the working copy of the free columns of J that pivotedQR
+	// overwrites with its reflectors; factX and factOK identify the point
+	// whose factorisation w.r, w.jpvt, w.qtb and w.free hold.
+	qr     []float64
+	factX  []float64
+	factOK bool
+	qtb    []float64 // Qᵀr, length m (first nf entries used)
+	jpvt   []int
 
 	r      []float64 // nf×nf (stride nf): R in the upper triangle
 	free   []int     // free[l] = global index of local column l
@@ -134,23 +144,91 @@ type work struct {
 	wa2    []float64
 	wa3    []float64
 	wa4    []float64
+	qnrm   []float64 // pivotedQR scratch
 
-	diag  []float64 // global scaling diagonal D
-	step  []float64 // global step
-	grad  []float64 // Jᵀr, used for the active set
-	xfd   []float64 // finite differences: perturbed point
-	fp    []float64 // finite differences: residuals
-	fm    []float64 // finite differences: residuals
-	xTry  []float64
-	fTry  []float64
+	diag []float64 // global scaling diagonal D
+	step []float64 // global step
+	grad []float64 // Jᵀr where x is on a bound (the active set)
+	xfd  []float64 // finite differences: perturbed point
+	fp   []float64 // finite differences: residuals
+	fm   []float64 // finite differences: residuals
+	xTry []float64
+	fTry []float64
+	f0   []float64 // r(init)
+
+	// Buffers of Fit, recycled with the work.
+	sqrtw  []float64
+	negsw  []float64
+	bounds []float64
+
 	stats optimize.Stats
 }
 
+// workPool recycles works between LeastSquares and Fit calls.
+var workPool sync.Pool
+
+// grow returns s resliced to length n, reallocated when its capacity is
+// too small (to the next power of two, so that the varying window sizes
+// of a batch settle on a few sizes). The contents are not cleared.
+func grow[T any](s []T, n int) []T {
+	if cap(s) < n {
+		return make([]T, n, 1<<bits.Len(uint(n-1)))
+	}
+	return s[:n]
+}
+
+// getWork returns a work for m residuals and n parameters, recycled from
+// workPool when possible; its buffers are sized but not initialised (see
+// init).
+func getWork(m, n int) *work {
+	w, _ := workPool.Get().(*work)
+	if w == nil {
+		w = new(work)
+	}
+	w.m, w.n = m, n
+	w.lower = grow(w.lower, n)
+	w.upper = grow(w.upper, n)
+	w.typ = grow(w.typ, n)
+	w.jt = grow(w.jt, n*m)
+	w.qr = grow(w.qr, n*m)
+	w.jacX = grow(w.jacX, n)
+	w.factX = grow(w.factX, n)
+	w.qtb = grow(w.qtb, m)
+	w.jpvt = grow(w.jpvt, n)
+	w.r = grow(w.r, n*n)
+	w.free = grow(w.free, n)
+	for _, p := range []*[]float64{&w.colnrm, &w.dloc, &w.cnloc, &w.slocal, &w.sdiag, &w.wa1, &w.wa2, &w.wa3, &w.wa4,
+		&w.qnrm, &w.diag, &w.step, &w.grad, &w.xfd, &w.xTry} {
+		*p = grow(*p, n)
+	}
+	for _, p := range []*[]float64{&w.fp, &w.fm, &w.fTry, &w.f0} {
+		*p = grow(*p, m)
+	}
+	return w
+}
+
+// putWork returns w to workPool. The caller must not use w, or any slice
+// or closure that refers to its buffers, afterwards.
+func putWork(w *work) {
+	w.f = Func{}
+	w.rowScale = nil
+	w.jac = nil
+	workPool.Put(w)
+}
+
+// newWork returns a work initialised for f from init (tests use it; the
+// solver uses getWork and init).
 func newWork(f Func, init []float64, typ []float64) *work {
-	m, n := f.M, len(init)
-	w := &work{m: m, n: n, f: f}
-	w.lower = make([]float64, n)
-	w.upper = make([]float64, n)
+	w := getWork(f.M, len(init))
+	w.init(f, init, typ)
+	return w
+}
+
+// init prepares w (from getWork(f.M, len(init))) for a run of f.
+func (w *work) init(f Func, init []float64, typ []float64) {
+	m, n := w.m, w.n
+	w.f = f
+	w.hasBounds = false
 	for j := range n {
 		w.lower[j] = math.Inf(-1)
 		w.upper[j] = math.Inf(1)
@@ -164,7 +242,6 @@ func newWork(f Func, init []float64, typ []float64) *work {
 			w.hasBounds = true
 		}
 	}
-	w.typ = make([]float64, n)
 	for j := range n {
 		switch {
 		case typ != nil && typ[j] > 0 && !math.IsInf(typ[j], 1):
@@ -175,92 +252,109 @@ func newWork(f Func, init []float64, typ []float64) *work {
 			w.typ[j] = 1
 		}
 	}
-	w.jac = mat.NewDense(m, n, nil)
-	w.jacRaw = w.jac.RawMatrix().Data
-	w.tau = make([]float64, n)
-	w.tau2 = make([]float64, n)
-	w.jt = make([]float64, n*m)
-	w.jpvt = make([]int, n)
-	w.qtb = make([]float64, m)
-	w.jacX = make([]float64, n)
-
-	// Workspace queries at the largest sizes used.
-	var q [1]float64
-	at := blas64.General{Rows: n, Cols: m, Stride: m, Data: w.jt}
-	lapack64.Gelqf(at, w.tau, q[:], -1)
-	lw := int(q[0])
-	lapack64.Ormlq(blas.Left, blas.NoTrans, at, w.tau, blas64.General{Rows: m, Cols: 1, Stride: 1, Data: w.qtb}, q[:], -1)
-	lw = max(lw, int(q[0]))
-	sq := blas64.General{Rows: n, Cols: n, Stride: n, Data: make([]float64, n*n)}
-	lapack64.Geqp3(sq, w.jpvt, w.tau2, q[:], -1)
-	lw = max(lw, int(q[0]))
-	lapack64.Ormqr(blas.Left, blas.Trans, sq, w.tau2, blas64.General{Rows: n, Cols: 1, Stride: 1, Data: w.qtb[:n]}, q[:], -1)
-	lw = max(lw, int(q[0]), 3*n+1, m)
-	w.lwork = lw
-	w.lwk = make([]float64, lw)
-
-	w.r = make([]float64, n*n)
-	w.free = make([]int, n)
-	vecs := make([]float64, 16*n)
-	next := func() []float64 { v := vecs[:n:n]; vecs = vecs[n:]; return v }
-	w.colnrm = next()
-	w.dloc = next()
-	w.cnloc = next()
-	w.slocal = next()
-	w.sdiag = next()
-	w.wa1 = next()
-	w.wa2 = next()
-	w.wa3 = next()
-	w.wa4 = next()
-	w.diag = next()
-	w.step = next()
-	w.grad = next()
-	w.xfd = next()
-	w.xTry = next()
-	w.fp = make([]float64, m)
-	w.fm = make([]float64, m)
-	w.fTry = make([]float64, m)
-	return w
+	w.jac = nil
+	if f.Jacobian != nil {
+		w.jacRaw = grow(w.jacRaw, m*n)
+		w.jac = mat.NewDense(m, n, w.jacRaw)
+	}
+	w.jacOK, w.factOK = false, false
+	w.nf = 0
+	w.stats = optimize.Stats{}
 }
 
-// eval fills dst with r(x) and reports whether every residual is finite.
-func (w *work) eval(dst, x []float64) bool {
+// eval fills dst with r(x) and returns Σ r_i² and whether every residual
+// is finite.
+func (w *work) eval(dst, x []float64) (ss float64, ok bool) {
 	w.stats.FuncEvaluations++
 	w.f.Residuals(dst, x)
+	ss = floats.Dot(dst, dst)
+	if !math.IsNaN(ss) && !math.IsInf(ss, 0) {
+		return ss, true // a NaN or ±Inf entry would make ss NaN or +Inf
+	}
 	for _, v := range dst {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return false
+			return ss, false
 		}
 	}
-	return true
+	return ss, true // finite entries whose squares overflow
 }
 
-// jacobian fills w.jac with J(x), analytically or by finite differences
-// (fx = r(x) is needed by the one-sided formula at a bound), and reports
-// whether every entry is finite.
+// normFromSS returns ‖v‖₂ given ss = Σ v_i² (see norm2).
+func normFromSS(v []float64, ss float64) float64 {
+	if ss > 0x1p-900 && ss < 0x1p900 {
+		return math.Sqrt(ss)
+	}
+	return floats.Norm(v, 2)
+}
+
+// jacobian fills w.jt with J(x)ᵀ, analytically or by finite differences
+// (fx = r(x) is needed by the one-sided formula at a bound), and w.colnrm
+// with its column norms, and reports whether every entry is finite.
 //
 // J depends on x alone, so a second call at the same x reuses the first.
 func (w *work) jacobian(x, fx []float64) bool {
 	if w.jacOK && floats.Equal(x, w.jacX) {
 		return true
 	}
-	w.jacOK = false
+	w.jacOK, w.factOK = false, false
 	w.stats.GradEvaluations++
 	if w.f.Jacobian != nil {
-		w.jac.Zero() // a Jacobian may set only its nonzero entries
+		clear(w.jacRaw) // a Jacobian may set only its nonzero entries
 		w.f.Jacobian(w.jac, x)
+		w.transposeJacobian()
 	} else if !w.fdJacobian(x, fx) {
 		return false
 	}
-	for _, v := range w.jacRaw {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return false
+	// The column norms, which also show any entry that is not finite: a
+	// NaN or ±Inf makes the sum of squares NaN or +Inf (and only then, or
+	// on overflow, is each entry checked).
+	for j := range w.n {
+		col := w.jtCol(j)
+		ss := floats.Dot(col, col)
+		if math.IsNaN(ss) || math.IsInf(ss, 0) {
+			for _, v := range col {
+				if math.IsNaN(v) || math.IsInf(v, 0) {
+					return false
+				}
+			}
 		}
+		w.colnrm[j] = normFromSS(col, ss)
 	}
 	copy(w.jacX, x)
 	w.jacOK = true
 	return true
 }
+
+// transposeJacobian copies the m×n matrix written by f.Jacobian into
+// w.jt, transposed and with row i scaled by rowScale[i] (when not nil).
+func (w *work) transposeJacobian() {
+	m, n := w.m, w.n
+	raw, jt := w.jacRaw[:m*n], w.jt[:n*m]
+	switch {
+	case n == 3 && w.rowScale != nil: // direct+urbach, the common case
+		c0, c1, c2 := jt[:m], jt[m:2*m], jt[2*m:3*m]
+		s := w.rowScale[:m]
+		for i := range s {
+			si, row := s[i], raw[3*i:3*i+3]
+			c0[i], c1[i], c2[i] = si*row[0], si*row[1], si*row[2]
+		}
+	case w.rowScale != nil:
+		for i, si := range w.rowScale[:m] {
+			for j, v := range raw[i*n : i*n+n] {
+				jt[j*m+i] = si * v
+			}
+		}
+	default:
+		for i := range m {
+			for j, v := range raw[i*n : i*n+n] {
+				jt[j*m+i] = v
+			}
+		}
+	}
+}
+
+// jtCol returns column j of the Jacobian held in w.jt.
+func (w *work) jtCol(j int) []float64 { return w.jt[j*w.m : j*w.m+w.m] }
 
 // clip projects x onto the box [lower, upper] and reports whether it moved.
 func (w *work) clip(x []float64) bool {
@@ -285,90 +379,49 @@ func (w *work) clip(x []float64) bool {
 // fixed for this iteration when the steepest-descent direction −Jᵀr points
 // out of the box (a projected-gradient active set, as in Kanzow, Yamashita
 // and Fukushima, J. Comput. Appl. Math. 172, 375, 2004); every other
-// parameter is free. It sets w.colnrm for all columns and returns nf.
+// parameter is free. It returns nf.
 //
-// The factorisation is done in two gonum steps, because J is tall and
-// narrow (m ≫ n) and stored row-major, where a pivoted QR
-// (lapack64.Geqp3) works on strided columns and is several times slower
-// than the rest of an iteration:
+// J is kept transposed (w.jt), so its columns are contiguous, and the
+// factorisation is a Householder QR with column pivoting written for this
+// layout (pivotedQR, which says why it is not gonum's). Only the damped
+// solve (qrsolv) is also our own, because LAPACK has no routine for
+// updating R by a diagonal.
 //
-//  1. the LQ factorisation of Jᵀ, Jᵀ = L·Q₁ (lapack64.Gelqf, whose
-//     reflectors run along the rows of Jᵀ, i.e. the contiguous columns of
-//     J), so J = Q₁ᵀ·R₀ with R₀ = Lᵀ, and Q₁·r by lapack64.Ormlq;
-//  2. the column-pivoted QR of the small n×n matrix R₀·P = Q₂·R
-//     (lapack64.Geqp3) and Q₂ᵀ(Q₁r) by lapack64.Ormqr.
-//
-// Then J·P = (Q₁ᵀQ₂)·R is a pivoted QR of J. Orthogonal transformations
-// keep the column norms, so step 2 picks the same pivots as a pivoted QR of
-// J itself would. Only the damped solve (qrsolv) is our own, because LAPACK
-// has no routine for updating R by a diagonal.
+// The factorisation depends on x alone (J = J(x), r = r(x)), so a second
+// call at the same x, as when a run ends on a rejected step and the polish
+// starts, reuses the first; lmpar and qrsolv keep the upper triangle of R.
 func (w *work) factorize(fx []float64, x []float64) int {
 	m, n := w.m, w.n
-	// Jᵀ into w.jt: row j is column j of J, contiguous.
-	jt := w.jt
-	for j := range n {
-		blas64.Copy(blas64.Vector{N: m, Inc: n, Data: w.jacRaw[j:]}, blas64.Vector{N: m, Inc: 1, Data: jt[j*m:]})
-	}
-	for j := range n {
-		col := jt[j*m : j*m+m]
-		ss := floats.Dot(col, col)
-		if ss > 0x1p-900 && ss < 0x1p900 {
-			w.colnrm[j] = math.Sqrt(ss)
-		} else {
-			w.colnrm[j] = floats.Norm(col, 2) // overflow- and underflow-safe
-		}
-		w.grad[j] = floats.Dot(col, fx)
+	if w.factOK && floats.Equal(x, w.factX) {
+		return w.nf
 	}
 	nf := 0
 	for j := range n {
-		if w.hasBounds && ((x[j] <= w.lower[j] && w.grad[j] > 0) || (x[j] >= w.upper[j] && w.grad[j] < 0)) {
-			continue
+		// Jᵀr is needed only where x is on a bound.
+		if w.hasBounds && (x[j] <= w.lower[j] || x[j] >= w.upper[j]) {
+			w.grad[j] = floats.Dot(w.jtCol(j), fx)
+			if (x[j] <= w.lower[j] && w.grad[j] > 0) || (x[j] >= w.upper[j] && w.grad[j] < 0) {
+				continue
+			}
 		}
 		w.free[nf] = j
 		nf++
 	}
 	w.nf = nf
+	copy(w.factX, x)
+	w.factOK = true
 	if nf == 0 {
 		return 0
 	}
-	// Step 1: Jᵀ_F = L·Q₁, on the rows of Jᵀ of the free parameters,
-	// moved to the front in place (free[l] ≥ l).
-	at := jt[:nf*m]
 	for l := range nf {
-		if j := w.free[l]; j != l {
-			copy(at[l*m:l*m+m], jt[j*m:j*m+m])
-		}
+		j := w.free[l]
+		copy(w.qr[l*m:l*m+m], w.jtCol(j))
+		w.dloc[l] = w.diag[j]
+		w.cnloc[l] = w.colnrm[j]
+		w.qnrm[l] = w.colnrm[j]
 	}
-	ga := blas64.General{Rows: nf, Cols: m, Stride: m, Data: at}
-	lapack64.Gelqf(ga, w.tau[:nf], w.lwk, w.lwork)
 	copy(w.qtb, fx)
-	lapack64.Ormlq(blas.Left, blas.NoTrans, ga, w.tau[:nf],
-		blas64.General{Rows: m, Cols: 1, Stride: 1, Data: w.qtb}, w.lwk, w.lwork)
-	// Step 2: R₀·P = Q₂·R with R₀ = Lᵀ.
-	r := w.r[:nf*nf]
-	for i := range nf {
-		for j := range nf {
-			if j >= i {
-				r[i*nf+j] = at[j*m+i]
-			} else {
-				r[i*nf+j] = 0
-			}
-		}
-	}
-	for l := range nf {
-		w.jpvt[l] = -1
-		w.dloc[l] = w.diag[w.free[l]]
-		w.cnloc[l] = w.colnrm[w.free[l]]
-	}
-	gr := blas64.General{Rows: nf, Cols: nf, Stride: nf, Data: r}
-	lapack64.Geqp3(gr, w.jpvt[:nf], w.tau2[:nf], w.lwk, w.lwork)
-	lapack64.Ormqr(blas.Left, blas.Trans, gr, w.tau2[:nf],
-		blas64.General{Rows: nf, Cols: 1, Stride: 1, Data: w.qtb[:nf]}, w.lwk, w.lwork)
-	for i := range nf {
-		for j := range i {
-			r[i*nf+j] = 0
-		}
-	}
+	pivotedQR(w.qr[:nf*m], m, nf, w.qtb, w.r[:nf*nf], w.jpvt[:nf], w.qnrm)
 	return nf
 }
 
@@ -631,7 +684,7 @@ func (w *work) lm(ctx context.Context, st strategy, x0, f0 []float64, cfg config
 	fvec := append([]float64(nil), f0...)
 	res := run{strategy: st.name, x: x, fvec: fvec}
 
-	fnorm := floats.Norm(fvec, 2)
+	fnorm := norm2(fvec)
 	var delta, xnorm, par float64
 	outer := 1
 	trials := 0
@@ -712,8 +765,8 @@ func (w *work) lm(ctx context.Context, st strategy, x0, f0 []float64, cfg config
 				delta = math.Min(delta, pnorm)
 			}
 			fnorm1 := math.Inf(1)
-			if w.eval(w.fTry, w.xTry) {
-				fnorm1 = floats.Norm(w.fTry, 2)
+			if ss, ok := w.eval(w.fTry, w.xTry); ok {
+				fnorm1 = normFromSS(w.fTry, ss)
 			}
 			actred := -1.0
 			if p1*fnorm1 < fnorm {
@@ -838,7 +891,11 @@ func scaledNorm(d, v []float64) float64 {
 // uncertainty; Gauss–Newton converges quadratically on small-residual
 // problems and recovers the remaining digits. A step is kept only while it
 // shrinks and the SSR does not grow beyond rounding (16ε relative); at
-// most 10 steps.
+// most 10 steps. A step no larger than the rounding of x itself,
+// ‖D s‖ ≤ ε·‖D x‖ (D the column norms), ends the polish before it is
+// evaluated: it cannot change x by more than its last bits, and not taking
+// it leaves the Jacobian and factorisation of the final x in place for the
+// covariance (assess), one residual and one Jacobian evaluation fewer.
 func (w *work) polish(ctx context.Context, res *run) {
 	n := w.n
 	x, fvec := res.x, res.fvec
@@ -891,24 +948,17 @@ func (w *work) polish(ctx context.Context, res *run) {
 		if snorm == 0 {
 			return
 		}
-		if snorm >= prev {
+		if snorm >= prev || snorm <= epsilon*xnorm {
 			return
 		}
 		w.stats.MajorIterations++
-		if !w.eval(w.fTry, w.xTry) {
-			return
-		}
-		ssr := floats.Dot(w.fTry, w.fTry)
-		if ssr > res.ssr*(1+16*epsilon) {
+		ssr, ok := w.eval(w.fTry, w.xTry)
+		if !ok || ssr > res.ssr*(1+16*epsilon) {
 			return
 		}
 		copy(x, w.xTry)
 		copy(fvec, w.fTry)
 		res.ssr = ssr
 		prev = snorm
-		if snorm <= epsilon*xnorm {
-			return
-		}
 	}
-	return
 }

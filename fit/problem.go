@@ -50,7 +50,10 @@ func Fit(ctx context.Context, p Problem, s *Settings) (*Result, error) {
 	case len(p.Init) != n:
 		return nil, fmt.Errorf("len(Init) = %d, model %s has %d parameters: %w", len(p.Init), p.Model.Name(), n, ErrLength)
 	}
-	sqrtw := make([]float64, m)
+	w := getWork(m, n)
+	defer putWork(w)
+	w.sqrtw = grow(w.sqrtw, m)
+	sqrtw := w.sqrtw
 	mEff := 0
 	for i := range m {
 		if !isFinite(p.E[i]) {
@@ -80,43 +83,44 @@ func Fit(ctx context.Context, p Problem, s *Settings) (*Result, error) {
 	if mEff < n {
 		return nil, fmt.Errorf("%d points with weight > 0 for %d parameters: %w", mEff, n, ErrTooFewPoints)
 	}
-	lower := make([]float64, n)
-	upper := make([]float64, n)
+	w.bounds = grow(w.bounds, 2*n)
+	lower, upper := w.bounds[:n], w.bounds[n:]
 	for j, q := range params {
 		lower[j], upper[j] = q.Min, q.Max
 	}
 
 	e, alpha := p.E, p.Alpha
-	buf := make([]float64, m)
 	mod := p.Model
 	f := Func{
 		M:     m,
 		Lower: lower,
 		Upper: upper,
+		// r_i = √w_i·(α_i − f(E_i)), with the model evaluated into dst.
 		Residuals: func(dst, q []float64) {
-			mod.Eval(buf, e, q)
-			for i := range dst {
-				dst[i] = sqrtw[i] * (alpha[i] - buf[i])
+			mod.Eval(dst, e, q)
+			dst = dst[:len(alpha)]
+			for i, v := range dst {
+				dst[i] = sqrtw[i] * (alpha[i] - v)
 			}
 		},
 	}
 	if jm, ok := mod.(model.Jacobianer); ok {
-		f.Jacobian = func(dst *mat.Dense, q []float64) {
-			jm.Jacobian(dst, e, q)
-			raw := dst.RawMatrix()
-			for i := range m {
-				row := raw.Data[i*raw.Stride : i*raw.Stride+n]
-				for j := range row {
-					row[j] *= -sqrtw[i]
-				}
-			}
+		// ∂r_i/∂p_j = −√w_i·∂f/∂p_j: the solver applies the row factors
+		// −√w_i while it transposes J (work.rowScale).
+		f.Jacobian = func(dst *mat.Dense, q []float64) { jm.Jacobian(dst, e, q) }
+		w.negsw = grow(w.negsw, m)
+		for i, v := range sqrtw {
+			w.negsw[i] = -v
 		}
 	}
 	if err := validateFunc(f, p.Init, s); err != nil {
 		return nil, err
 	}
 	init := append([]float64(nil), p.Init...)
-	return solve(ctx, f, init, s, mEff-n)
+	if f.Jacobian != nil {
+		w.rowScale = w.negsw
+	}
+	return solve(ctx, w, f, init, s, mEff-n)
 }
 
 func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
