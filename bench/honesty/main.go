@@ -8,6 +8,15 @@
 // tail/gap correlation). Optionally it compares a residual-resampling
 // bootstrap with the covariance intervals.
 //
+// The A, W, D, U and F rows fit α directly (fit.Fit, or edge.Analyze on α
+// data with σ_α from the noisy T: the tool before it fitted in
+// transmittance). The T and P rows are the tool's own path since then:
+// scan.Convert and edge.Analyze, fitted in transmittance (T: window forced
+// at the truth; P: the whole pipeline). A last table says what
+// edge.Analyze presented per regime (gap not determined, statistics
+// withheld, curvature-bias warning) and how honest the presented
+// intervals were; -dump writes every replica for further analysis.
+//
 //	go run ./bench/honesty                 # 20,000 replicas per regime
 //	go run ./bench/honesty -n 2000 -boot 0 # quick look
 //
@@ -38,7 +47,7 @@ type options struct {
 	n, nPipe, workers int
 	seed              uint64
 	boot, bootB       int
-	only              string
+	only, dump        string
 }
 
 func run(args []string, out, errOut io.Writer) int {
@@ -53,6 +62,7 @@ func run(args []string, out, errOut io.Writer) int {
 	fs.IntVar(&o.bootB, "B", 400, "bootstrap resamples per replica")
 	fs.Float64Var(&gridStep, "step", 0.3, "wavelength step of the scan in nm (0.3: 1000 points)")
 	fs.StringVar(&o.only, "only", "", "run only the regimes whose name contains this text")
+	fs.StringVar(&o.dump, "dump", "", "write every replica's outcome as CSV to this file (for further analysis)")
 	if err := fs.Parse(args); err != nil {
 		return 2
 	}
@@ -82,6 +92,13 @@ func run(args []string, out, errOut io.Writer) int {
 		fmt.Fprintf(errOut, "  %-44s %6d replicas in %v\n", r.name, n, time.Since(t0).Round(time.Millisecond))
 	}
 	printTables(out, rows)
+	printDegeneracy(out, rows)
+	if o.dump != "" {
+		if err := dumpCSV(o.dump, rows); err != nil {
+			fmt.Fprintf(errOut, "honesty: %v\n", err)
+			return 1
+		}
+	}
 	if o.boot > 0 && o.only == "" {
 		if err := bootstrapStudy(ctx, out, o); err != nil {
 			fmt.Fprintf(errOut, "honesty: bootstrap: %v\n", err)
@@ -148,6 +165,37 @@ func regimes(o options) []regime {
 			add(fmt.Sprintf("F %g µm, σ_T %g, %s", c.um, c.sigmaT, k), func(r *regime) { r.thick, r.sigmaT, r.noise = c.um*1e-4, c.sigmaT, k })
 		}
 	}
+	// Before the fix, the pipeline at the remaining regimes of the tool
+	// rows below (α fitted with σ_α from the measured T, α mask).
+	add("A7 pipeline (Analyze), 2 µm, σ_T 0.005", func(r *regime) { r.sigmaT, r.noise, r.analyze, r.n = 0.005, tDataWeights, true, o.nPipe })
+	for _, um := range []float64{30, 40} {
+		add(fmt.Sprintf("D pipeline (Analyze), %g µm", um), func(r *regime) { r.thick, r.noise, r.analyze, r.n = um*1e-4, tDataWeights, true, o.nPipe })
+	}
+	// After the fix: the tool's own path, scan.Convert and edge.Analyze,
+	// which fits in transmittance with the model-predicted floor. T rows
+	// force the window at the truth; P rows run the whole pipeline.
+	tool := func(name string, f func(r *regime)) {
+		add(name, func(r *regime) { r.noise = tTool; f(r) })
+	}
+	tool("T 2 µm, tool", func(r *regime) {})
+	tool("T 2 µm, σ_T 0.005, tool", func(r *regime) { r.sigmaT = 0.005 })
+	for _, um := range []float64{10, 20, 25, 30, 40, 50} {
+		tool(fmt.Sprintf("T %g µm, tool", um), func(r *regime) { r.thick = um * 1e-4 })
+	}
+	for _, k := range []float64{3, 1} {
+		tool(fmt.Sprintf("T window to E_g + %g·E_U, tool", k), func(r *regime) { r.hiAbove = k * r.truth[iEU] })
+	}
+	tool("T window to E_g + 1·E_U, σ_T 0.01, tool", func(r *regime) { r.hiAbove, r.sigmaT = r.truth[iEU], 0.01 })
+	tool("T E_U = 25 meV, tool", func(r *regime) { r.truth = truthEU(0.025) })
+	pipe := func(name string, f func(r *regime)) {
+		tool(name, func(r *regime) { r.analyze, r.n = true, o.nPipe; f(r) })
+	}
+	pipe("P pipeline (tool), 2 µm", func(r *regime) {})
+	pipe("P pipeline (tool), 2 µm, σ_T 0.005", func(r *regime) { r.sigmaT = 0.005 })
+	for _, um := range []float64{10, 20, 25, 30, 40, 50} {
+		pipe(fmt.Sprintf("P pipeline (tool), %g µm", um), func(r *regime) { r.thick = um * 1e-4 })
+	}
+	pipe("P pipeline (tool), E_U = 25 meV", func(r *regime) { r.truth = truthEU(0.025) })
 	return rs
 }
 
@@ -173,9 +221,9 @@ func printTables(out io.Writer, rows []row) {
 	}
 	tw.Flush()
 	for j := range nPar {
-		fmt.Fprintf(out, "\n%s: sd/√CRB is the efficiency ratio (1 = efficient); SE/sd compares the mean reported standard error with the actual spread; bias/SE is in units of the mean standard error, predicted is the first-order bias from the T-noise model (in √CRB; mask selection not included); coverage in %% (±2σ_binom beside 68.3 and 95)\n", parNames[j])
+		fmt.Fprintf(out, "\n%s: sd/√CRB is the efficiency ratio (1 = efficient); SE/sd compares the mean reported standard error with the actual spread; bias/SE is in units of the mean standard error, predicted is the first-order bias from the T-noise model of the α fits (in √CRB; mask selection not included); curv. is the mean curvature bias edge.Analyze predicts for itself (Result.PredictedBias, Box 1971, in SE; tool rows); coverage in %% (±2σ_binom beside 68.3 and 95)\n", parNames[j])
 		tw := tabwriter.NewWriter(out, 0, 0, 2, ' ', tabwriter.AlignRight)
-		fmt.Fprintln(tw, "regime\tok\t√CRB\tsd/√CRB\tSE/sd\tbias/SE\tpredicted\tt68.3\tt95\t±1SE\t±1.96SE\t±u_c\t±2u_c\ttail-only\twarned\t")
+		fmt.Fprintln(tw, "regime\tok\t√CRB\tsd/√CRB\tSE/sd\tbias/SE\tpredicted\tcurv.\tt68.3\tt95\t±1SE\t±1.96SE\t±u_c\t±2u_c\ttail-only\twarned\t")
 		for _, r := range rows {
 			sm := summarize(r.s, r.out, j)
 			uc1, uc2 := "", ""
@@ -184,7 +232,11 @@ func printTables(out io.Writer, rows []row) {
 				uc1, uc2 = pct(sm.covU1), pct(sm.covU2)
 				to, wa = fmt.Sprint(sm.tailOnly), fmt.Sprint(sm.warned)
 			}
-			fmt.Fprintf(tw, "%s\t%d\t%.3g\t%.3f\t%.3f\t%+.3f\t%+.3f\t%s±%.1f\t%s±%.1f\t%s\t%s\t%s\t%s\t%s\t%s\t\n", r.s.r.name, sm.n, sm.crbSD, sm.sd/sm.crbSD, sm.meanSE/sm.sd, sm.bias/sm.meanSE, r.s.predBias[j],
+			curv := ""
+			if r.s.r.noise == tTool {
+				curv = fmt.Sprintf("%+.3f", sm.curv)
+			}
+			fmt.Fprintf(tw, "%s\t%d\t%.3g\t%.3f\t%.3f\t%+.3f\t%+.3f\t%s\t%s±%.1f\t%s±%.1f\t%s\t%s\t%s\t%s\t%s\t%s\t\n", r.s.r.name, sm.n, sm.crbSD, sm.sd/sm.crbSD, sm.meanSE/sm.sd, sm.bias/sm.meanSE, r.s.predBias[j], curv,
 				pct(sm.covT68), 200*binomSE(0.683, max(sm.n, 1)), pct(sm.covT95), 200*binomSE(0.95, max(sm.n, 1)), pct(sm.covZ1), pct(sm.covZ196), uc1, uc2, to, wa)
 		}
 		tw.Flush()

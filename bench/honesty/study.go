@@ -15,6 +15,8 @@ import (
 
 	"bandedge/fit"
 	"bandedge/fit/edge"
+	"bandedge/fit/scan"
+	"bandedge/io/specio"
 	"bandedge/model"
 	"bandedge/model/optics"
 	"bandedge/model/synth"
@@ -55,6 +57,13 @@ const (
 	// scan, so that no point is dropped because its own noise pushed it
 	// below the 5σ_T or absorbance floor (isolates that selection).
 	tSpaceTrueMask
+	// tTool: Gaussian noise on T, converted by the tool's own path
+	// (scan.Convert: optics.ToAlpha plus the transmission view) and fitted
+	// by edge.Analyze, which fits in transmittance space with the
+	// model-predicted floor. Fixed-window regimes force the window
+	// (Options.Window) and skip the window budget; the start values are
+	// the tool's own.
+	tTool
 )
 
 func (k noiseKind) String() string {
@@ -71,6 +80,8 @@ func (k noiseKind) String() string {
 		return "T noise, fit in T"
 	case tSpaceTrueMask:
 		return "T noise, fit in T, fixed mask"
+	case tTool:
+		return "T noise, tool (fit in T)"
 	}
 	return "?"
 }
@@ -135,8 +146,15 @@ func newSetup(r regime) (*setup, error) {
 	}
 	s.alpha0, s.sigma0, s.t0, s.mask0 = sc.Alpha, conv.Sigma, sc.T, conv.Mask
 	s.win = [2]float64{p[iEg] - r.loTail*p[iEU], p[iEg] + r.hiAbove}
+	floor := math.Pow(10, -optics.DefaultMaxAbsorbance)
 	for i, e := range s.e {
-		if s.mask0[i] && e >= s.win[0] && e <= s.win[1] {
+		if !(e >= s.win[0] && e <= s.win[1]) {
+			continue
+		}
+		// The tool's transmittance fit keeps every point whose absorbance
+		// predicted at the estimate is within the floor (here: at the
+		// truth); the α fits keep the noiseless scan's α mask.
+		if r.noise == tTool && sc.T[i] >= floor || r.noise != tTool && s.mask0[i] {
 			s.inWin = append(s.inWin, i)
 		}
 	}
@@ -262,6 +280,17 @@ type outcome struct {
 	// tailOnly and warned record edge.Analyze's verdicts.
 	tailOnly bool
 	warned   bool
+	// corr is the fit's own corr(E_g, C) and cond the condition number
+	// it reports; curv is edge.Result.PredictedBias in units of each
+	// parameter's standard error (NaN for the α fits).
+	corr, cond float64
+	curv       [nPar]float64
+	// statNaN is true when edge.Analyze withheld the statistical term of
+	// E_g (near-degenerate fit).
+	statNaN bool
+	// undetermined is true when edge.Analyze reported E_g as not
+	// determined.
+	undetermined bool
 }
 
 // Failure classes of an outcome.
@@ -348,6 +377,9 @@ func streamOf(name string) uint64 {
 
 // replica makes replica i of the regime and fits it.
 func (s *setup) replica(ctx context.Context, seed uint64, i int) outcome {
+	if s.r.noise == tTool {
+		return s.tool(ctx, s.rng(seed, streamOf(s.r.name), i))
+	}
 	alpha, sigma, mask, err := s.draw(s.rng(seed, streamOf(s.r.name), i))
 	if err != nil {
 		return outcome{status: failErr}
@@ -411,7 +443,7 @@ func (m slabT) Jacobian(dst *mat.Dense, e, p []float64) {
 }
 
 func classify(res *fit.Result, err error) outcome {
-	var o outcome
+	o := outcome{corr: math.NaN(), cond: math.NaN(), curv: [nPar]float64{math.NaN(), math.NaN(), math.NaN()}}
 	switch {
 	case res == nil:
 		o.status = failErr
@@ -442,11 +474,47 @@ func classify(res *fit.Result, err error) outcome {
 
 func (s *setup) analyze(ctx context.Context, alpha, sigma []float64, mask []bool) outcome {
 	d := edge.Data{E: s.e, Alpha: alpha, Sigma: sigma, Mask: mask, SigmaKnown: true}
-	res, err := edge.Analyze(ctx, d, edge.Options{})
+	return s.analyzed(edge.Analyze(ctx, d, edge.Options{}))
+}
+
+// tool makes a replica's noisy T and runs it through the tool: the
+// spectrum is converted by scan.Convert (σ_T given, R from n = 3.6) and
+// fitted by edge.Analyze.
+func (s *setup) tool(ctx context.Context, rng *rand.Rand) outcome {
+	n := len(s.e)
+	t := make([]float64, n)
+	for k := range t {
+		t[k] = s.t0[k] + s.r.sigmaT*rng.NormFloat64()
+	}
+	sp := &specio.Spectrum{E: s.e, Y: t, Kind: specio.Transmittance}
+	set := scan.Settings{Thickness: s.r.thick, TNoise: s.r.sigmaT, Index: 3.6}
+	d, _, _, err := scan.Convert(sp, set, set.Index)
+	if err != nil {
+		return outcome{status: failErr}
+	}
+	var opt edge.Options
+	if !s.r.analyze {
+		opt.Window, opt.NoWindowBudget = s.win, true
+	}
+	return s.analyzed(edge.Analyze(ctx, d, opt))
+}
+
+func (s *setup) analyzed(res *edge.Result, err error) outcome {
 	if err != nil || res == nil || res.Fit == nil {
 		return outcome{status: failErr}
 	}
 	o := classify(res.Fit, nil)
+	if res.Correlation != nil {
+		o.corr = res.Correlation[iEg][iAmp]
+	}
+	o.cond = res.Fit.Cond
+	for j := range nPar {
+		o.curv[j] = res.PredictedBias[j] / res.Fit.StdErr[j]
+	}
+	if st, ok := res.Budgets["eg"].Term("statistical"); ok {
+		o.statNaN = math.IsNaN(st.U)
+	}
+	o.undetermined = res.TailOnly
 	if res.Fit.Cov == nil {
 		o.status = failSingular
 	}
@@ -493,6 +561,9 @@ type summary struct {
 	covZ1, covZ196   float64 // coverage of ±1 and ±1.96 SE
 	covU1, covU2     float64 // coverage of ±u_c and ±2u_c (Analyze only)
 	tailOnly, warned int
+	// curv is the mean of edge.Result.PredictedBias/SE over the ok fits
+	// (tool rows only; NaN otherwise).
+	curv float64
 }
 
 func summarize(s *setup, out []outcome, j int) summary {
@@ -503,7 +574,7 @@ func summarize(s *setup, out []outcome, j int) summary {
 	} else {
 		sm.crbSD = math.NaN()
 	}
-	var sum, sum2, sumSE float64
+	var sum, sum2, sumSE, sumCurv float64
 	var t68, t95, z1, z196, u1, u2 int
 	for _, o := range out {
 		if o.tailOnly {
@@ -518,6 +589,7 @@ func summarize(s *setup, out []outcome, j int) summary {
 			continue
 		}
 		sm.n++
+		sumCurv += o.curv[j]
 		d := o.est[j] - truth
 		sum += d
 		sum2 += d * d
@@ -548,12 +620,14 @@ func summarize(s *setup, out []outcome, j int) summary {
 		nan := math.NaN()
 		sm.bias, sm.sd, sm.meanSE = nan, nan, nan
 		sm.covT68, sm.covT95, sm.covZ1, sm.covZ196, sm.covU1, sm.covU2 = nan, nan, nan, nan, nan, nan
+		sm.curv = nan
 		return sm
 	}
 	n := float64(sm.n)
 	sm.bias = sum / n
 	sm.sd = math.Sqrt((sum2 - n*sm.bias*sm.bias) / (n - 1))
 	sm.meanSE = sumSE / n
+	sm.curv = sumCurv / n
 	sm.covT68, sm.covT95 = float64(t68)/n, float64(t95)/n
 	sm.covZ1, sm.covZ196 = float64(z1)/n, float64(z196)/n
 	sm.covU1, sm.covU2 = float64(u1)/n, float64(u2)/n

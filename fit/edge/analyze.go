@@ -71,6 +71,11 @@ type Options struct {
 	// NoWindowBudget skips the window-family refits (the window term is
 	// then reported as not evaluated and the combined uncertainty is NaN).
 	NoWindowBudget bool
+
+	// points, when not nil, fixes the points of the fit (Compare: every
+	// candidate sees the reference model's points, so that their
+	// likelihoods compare); Window then only names their range.
+	points []bool
 }
 
 // KaneInputs are the material inputs needed to turn the fitted amplitude
@@ -104,12 +109,20 @@ type ParamValue struct {
 	CI95   [2]float64 `json:"ci95"`
 	// AtBound is true when the estimate ended on a parameter bound.
 	AtBound bool `json:"at_bound,omitempty"`
+	// StatWithheld is true when the fit is near-degenerate along this
+	// parameter (see Result.Warnings): StdErr and CI95 are then NaN
+	// rather than a number that does not describe the estimate.
+	StatWithheld bool `json:"stat_withheld,omitempty"`
 }
 
 // Result is the outcome of Analyze.
 type Result struct {
 	// Model is the model's name.
 	Model string `json:"model"`
+	// Space is where the residuals were formed: SpaceTransmittance for
+	// transmittance and absorbance input (Data.Transmission), SpaceAlpha
+	// for α input. Chi2Red, DoF and the covariance belong to that fit.
+	Space string `json:"fit_space"`
 	// Params are the fitted parameters with statistical standard errors
 	// and 95 % intervals from Student's t with DoF degrees of freedom.
 	Params []ParamValue `json:"params"`
@@ -124,8 +137,12 @@ type Result struct {
 	// Window is the fit window in eV and WindowRule how it was chosen.
 	Window     [2]float64 `json:"window_ev"`
 	WindowRule string     `json:"window_rule"`
-	// InWindow marks the points of Data inside the window.
+	// InWindow marks the points of Data that entered the fit.
 	InWindow []bool `json:"-"`
+	// FloorExcluded is the number of window points a transmittance fit
+	// left out because the absorbance predicted by the fitted model
+	// exceeds the instrument floor (0 in α space).
+	FloorExcluded int `json:"floor_excluded"`
 	// Converged is false when the solver stopped early; Status names how
 	// it stopped.
 	Converged bool   `json:"converged"`
@@ -134,6 +151,11 @@ type Result struct {
 	Cond float64 `json:"condition_number"`
 	// CovScaled is true when the covariance was scaled by χ²_red.
 	CovScaled bool `json:"covariance_scaled"`
+	// PredictedBias is the first-order bias of each parameter that the
+	// curvature of the model causes at this fit (Box 1971, evaluated from
+	// the fit's own covariance and residuals; see predictedBias), in the
+	// parameter's unit; NaN when it could not be computed.
+	PredictedBias []float64 `json:"predicted_bias"`
 	// Budgets holds an uncertainty budget for every fitted parameter,
 	// keyed by its name ("eg", "amp", "eu", …), and for E_P ("ep") when
 	// asked.
@@ -183,10 +205,10 @@ func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
 	if ieg < 0 || iamp < 0 {
 		return nil, fmt.Errorf("edge: model %s lacks an eg or amp parameter", m.Name())
 	}
-	if need := minWindowPoints(len(m.Params())); d.Usable() < need {
-		return nil, fmt.Errorf("%w: %d usable points in the whole spectrum, need at least %d", ErrTooFewPoints, d.Usable(), need)
+	if need := minWindowPoints(len(m.Params())); d.fitUsableCount() < need {
+		return nil, fmt.Errorf("%w: %d usable points in the whole spectrum, need at least %d", ErrTooFewPoints, d.fitUsableCount(), need)
 	}
-	res := &Result{Model: m.Name(), Budgets: map[string]Budget{}, EP: math.NaN()}
+	res := &Result{Model: m.Name(), Space: d.Space(), Budgets: map[string]Budget{}, EP: math.NaN()}
 
 	start := startValues(d, m, res)
 	res.Constructions = Constructions(d)
@@ -195,27 +217,42 @@ func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
 	var in []bool
 	var fr *fit.Result
 	var err error
-	if forced {
-		win = o.Window
-		res.WindowRule = fmt.Sprintf("forced: %.4g to %.4g eV", win[0], win[1])
-		in = windowMask(d, win)
+	switch {
+	case o.points != nil:
+		// Compare: every candidate is fitted to the reference's points.
+		win, in = o.Window, append([]bool(nil), o.points...)
+		res.WindowRule = fmt.Sprintf("common to the comparison: the reference model's %d points, %.4g to %.4g eV", count(in), win[0], win[1])
 		fr, err = fitWindow(ctx, d, m, in, start)
-	} else {
+	default:
+		// The window (automatic, or forced) and, in transmittance space,
+		// the model-predicted floor are placed at the start values, then
+		// at each new estimate, until the set of points stops changing.
 		p := start
 		for pass := 0; pass < maxWindowPasses; pass++ {
-			w := autoWindow(m, p, o)
-			next := windowMask(d, w)
+			w := o.Window
+			if !forced {
+				w = autoWindow(m, p, o)
+			}
+			next, left := fitMask(d, m, w, p)
 			if in != nil && equalMask(in, next) {
 				break
 			}
-			win, in = w, next
+			win, in, res.FloorExcluded = w, next, left
 			fr, err = fitWindow(ctx, d, m, in, start)
 			if err != nil {
 				break
 			}
 			p = fr.Params
 		}
-		res.WindowRule = autoRule(m, o)
+		if forced {
+			res.WindowRule = fmt.Sprintf("forced: %.4g to %.4g eV", win[0], win[1])
+		} else {
+			res.WindowRule = autoRule(m, o)
+		}
+	}
+	if d.tSpace() {
+		res.WindowRule += fmt.Sprintf("; fitted in transmittance, leaving out the points whose absorbance predicted by the fit exceeds %g (%d)",
+			d.Transmission.maxAbsorbance(), res.FloorExcluded)
 	}
 	if err != nil && (fr == nil || !errors.Is(err, fit.ErrSingular)) {
 		return nil, err
@@ -224,11 +261,24 @@ func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
 	res.Start = start
 	res.Fit = fr
 	res.fill(m, fr, d.SigmaKnown, count(in))
+	pr := newProblem(d, m, in)
+	jac := residualJacobian(pr, fr.Params)
+	res.PredictedBias = predictedBias(pr, fr, jac)
+	if res.PredictedBias == nil {
+		res.PredictedBias = make([]float64, len(fr.Params))
+		for j := range res.PredictedBias {
+			res.PredictedBias[j] = math.NaN()
+		}
+	}
 	if err != nil {
-		// Singular covariance: the estimates stand but say so.
-		res.Warnings = append(res.Warnings, fmt.Sprintf("the covariance could not be computed (%v): the parameters are not determined by these data", err))
+		// Singular covariance: the estimates stand but say so (withhold
+		// recovers the standard errors of the parameters the data
+		// determine).
+		res.Warnings = append(res.Warnings, fmt.Sprintf("the covariance could not be computed (%v): not every parameter is determined by these data", err))
 	}
 	res.warn(d, m, ieg, iamp)
+	res.withhold(jac, ieg, iamp, d.SigmaKnown)
+	res.warnBias()
 
 	// Uncertainty budgets: one per parameter, with the statistical and
 	// window terms; E_g and the amplitude get the input terms.
@@ -236,9 +286,10 @@ func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
 	fam := make([][]float64, len(fr.Params))
 	if !o.NoWindowBudget {
 		for _, w := range family {
-			fw, err := fitWindow(ctx, d, m, windowMask(d, w), fr.Params)
-			if err != nil || fw.Status.Early() {
-				continue
+			fin, _ := fitMask(d, m, w, fr.Params)
+			fw, err := fitWindow(ctx, d, m, fin, fr.Params)
+			if fw == nil || (err != nil && !errors.Is(err, fit.ErrSingular)) || fw.Status.Early() {
+				continue // a singular covariance leaves the estimates valid
 			}
 			for j, v := range fw.Params {
 				fam[j] = append(fam[j], v)
@@ -259,7 +310,11 @@ func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
 	}
 	terms := make([][]Term, len(fr.Params))
 	for j, q := range m.Params() {
-		terms[j] = []Term{{Source: "statistical", Type: TypeA, InputUnit: q.Unit, U: res.Params[j].StdErr, Note: res.statNote()}, winTerm(j)}
+		note := res.statNote()
+		if res.Params[j].StatWithheld {
+			note = "withheld: near-degenerate fit, the least-squares standard error is not reliable (see the warnings)"
+		}
+		terms[j] = []Term{{Source: "statistical", Type: TypeA, InputUnit: q.Unit, U: res.Params[j].StdErr, Note: note}, winTerm(j)}
 	}
 	if o.WavelengthErr > 0 {
 		eg := fr.Params[ieg]
@@ -446,14 +501,6 @@ func autoRule(m model.Model, o Options) string {
 	return fmt.Sprintf("automatic: E_g to E_g + %g eV, iterated to a fixed point", o.AboveGap)
 }
 
-func windowMask(d Data, w [2]float64) []bool {
-	in := make([]bool, len(d.E))
-	for i, e := range d.E {
-		in[i] = d.usable(i) && e >= w[0] && e <= w[1]
-	}
-	return in
-}
-
 // clipWindow reports the window as the energies of the first and last
 // point inside it (the nominal limits may lie beyond the data).
 func clipWindow(d Data, in []bool, w [2]float64) [2]float64 {
@@ -489,25 +536,15 @@ func count(in []bool) int {
 	return n
 }
 
-// fitWindow fits m to the points of d marked in in.
+// fitWindow fits m to the points of d marked in in, in d's space (see
+// newProblem and Transmission).
 func fitWindow(ctx context.Context, d Data, m model.Model, in []bool, start []float64) (*fit.Result, error) {
 	n := count(in)
 	if need := minWindowPoints(len(start)); n < need {
 		return nil, fmt.Errorf("%w: %d points, need at least %d (3 per parameter, at least %d)", ErrTooFewPoints, n, need, MinWindowPoints)
 	}
-	e := make([]float64, 0, n)
-	a := make([]float64, 0, n)
-	w := make([]float64, 0, n)
-	for i, ok := range in {
-		if ok {
-			e = append(e, d.E[i])
-			a = append(a, d.Alpha[i])
-			w = append(w, 1/(d.Sigma[i]*d.Sigma[i]))
-		}
-	}
-	prob := fit.Problem{E: e, Alpha: a, Weights: w, Model: m, Init: start}
-	set := &fit.Settings{AbsoluteSigma: d.SigmaKnown}
-	fr, err := fit.Fit(ctx, prob, set)
+	pr := newProblem(d, m, in)
+	fr, err := fit.LeastSquares(ctx, pr.f, start, pr.set)
 	if fr == nil || !atBound(fr) || ctx.Err() != nil {
 		return fr, err
 	}
@@ -516,8 +553,7 @@ func fitWindow(ctx context.Context, d Data, m model.Model, in []bool, start []fl
 	// start with the tail width three times larger and three times
 	// smaller, and keep the lowest χ².
 	for _, alt := range alternativeStarts(m, start) {
-		prob.Init = alt
-		fa, erra := fit.Fit(ctx, prob, set)
+		fa, erra := fit.LeastSquares(ctx, pr.f, alt, pr.set)
 		if fa != nil && !fa.Status.Early() && fa.SSR < fr.SSR*(1-1e-9) {
 			fr, err = fa, erra
 		}
@@ -595,10 +631,14 @@ func denseRows(c *mat.SymDense) [][]float64 {
 }
 
 func (r *Result) statNote() string {
-	if r.CovScaled {
-		return "least-squares standard error, covariance scaled by χ²_red"
+	in := "fit in α"
+	if r.Space == SpaceTransmittance {
+		in = "fit in transmittance"
 	}
-	return "least-squares standard error, absolute weights"
+	if r.CovScaled {
+		return "least-squares standard error (" + in + "), covariance scaled by χ²_red"
+	}
+	return "least-squares standard error (" + in + "), absolute weights"
 }
 
 // windowFamily returns the eight windows around w used for the window
@@ -645,7 +685,8 @@ func indexSensitivity(ctx context.Context, ix *IndexInput, m model.Model, w [2]f
 		if err != nil {
 			return nil
 		}
-		fr, err := fitWindow(ctx, d, m, windowMask(d, w), p)
+		fin, _ := fitMask(d, m, w, p)
+		fr, err := fitWindow(ctx, d, m, fin, p)
 		if fr == nil || (err != nil && !errors.Is(err, fit.ErrSingular)) {
 			return nil
 		}

@@ -50,7 +50,8 @@ func TestWindowTermKnownByConstruction(t *testing.T) {
 	m := model.DirectUrbach{}
 	var gaps []float64
 	for _, w := range append(windowFamily(m, ref.Fit.Params, ref.Window), ref.Window) {
-		fr, err := fitWindow(context.Background(), clean, m, windowMask(clean, w), ref.Fit.Params)
+		in, _ := fitMask(clean, m, w, ref.Fit.Params)
+		fr, err := fitWindow(context.Background(), clean, m, in, ref.Fit.Params)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -52,12 +52,14 @@ type Comparison struct {
 // ErrNoCandidate is returned when no candidate could be fitted.
 var ErrNoCandidate = errors.New("edge: no candidate model could be fitted")
 
-// Compare fits every candidate model to d over one common window and ranks
-// them by the Akaike information criterion. The window is the one the
-// automatic rule (or o.Window) gives for the first candidate, so that all
-// candidates see the same points: information criteria compare models on
-// the same data only. With absolute or estimated noise (the weights are
-// 1/σ²),
+// Compare fits every candidate model to d over one common set of points
+// and ranks them by the Akaike information criterion. The points are those
+// the first candidate's analysis used (its window, automatic or o.Window,
+// and in transmittance space its model-predicted floor), and every
+// candidate is fitted in the same space (d.Space()), so that all χ² are
+// likelihoods of the same data: information criteria compare models on the
+// same data only. With absolute or estimated noise (the weights are 1/σ²;
+// in transmittance space χ² = Σ((T_i − T_model,i)/σ_T)²),
 //
 //	AIC = χ² + 2k,   BIC = χ² + k·ln n
 //
@@ -96,6 +98,7 @@ func Compare(ctx context.Context, d Data, cands []model.Model, o Options) (*Comp
 	c := &Comparison{Window: ref.Window}
 	common := o
 	common.Window = ref.Window
+	common.points = ref.InWindow
 	for i, m := range cands {
 		cand := Candidate{Model: m.Name(), K: len(m.Params())}
 		var res *Result

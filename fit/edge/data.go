@@ -34,6 +34,12 @@ type Data struct {
 	// exported by other software, with no noise information): the reduced
 	// χ² then says nothing about the goodness of fit.
 	RelativeSigma bool
+	// Transmission, when not nil, is the measured transmittance Alpha was
+	// converted from. Analyze then fits the model in transmittance space
+	// (see Transmission); Alpha, Sigma and Mask still give the start
+	// values, the linearised constructions and what a report draws. It is
+	// ignored when RelativeSigma is true.
+	Transmission *Transmission
 }
 
 // ErrData is wrapped by every error about malformed Data.
@@ -44,6 +50,11 @@ func (d Data) Validate() error {
 	n := len(d.E)
 	if len(d.Alpha) != n || len(d.Sigma) != n || (d.Mask != nil && len(d.Mask) != n) {
 		return fmt.Errorf("%w: lengths E %d, alpha %d, sigma %d, mask %d", ErrData, n, len(d.Alpha), len(d.Sigma), len(d.Mask))
+	}
+	if d.tSpace() {
+		if err := d.Transmission.validate(n); err != nil {
+			return err
+		}
 	}
 	for i := 1; i < n; i++ {
 		if !(d.E[i] > d.E[i-1]) {

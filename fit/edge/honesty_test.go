@@ -10,9 +10,12 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"bandedge/fit"
 	"bandedge/fit/edge"
+	"bandedge/fit/scan"
+	"bandedge/io/specio"
 	"bandedge/model"
 	"bandedge/model/optics"
 	"bandedge/model/synth"
@@ -22,24 +25,25 @@ import (
 // realistic scan it checks that
 //
 //	(a) the standard deviation of the fitted parameters is within 10 % of
-//	    the Cramér–Rao bound √[(JᵀWJ)⁻¹]_jj at the true parameters, J the
-//	    model's analytic Jacobian and W = diag(1/σ²) (Kay, Fundamentals of
-//	    Statistical Signal Processing: Estimation Theory, 1993, ch. 3);
-//	(b) the nominal 68.3 % and 95 % intervals, fit.Result.ConfInt (Student's
-//	    t with the fit's DoF) and ±1, ±1.96 standard errors, contain the
-//	    truth at rates within ±2 and ±1.5 percentage points of nominal;
+//	    the Cramér–Rao bound √[(JᵀWJ)⁻¹]_jj at the true parameters (Kay,
+//	    Fundamentals of Statistical Signal Processing: Estimation Theory,
+//	    1993, ch. 3), J the Jacobian of what is fitted and W = diag(1/σ²);
+//	(b) the nominal 68.3 % and 95 % intervals (Student's t with the fit's
+//	    DoF) and ±1, ±1.96 standard errors contain the truth at rates within
+//	    ±2 and ±1.5 percentage points of nominal;
 //	(c) the mean bias is below a tenth of the (mean reported) standard
 //	    error.
 //
 // The longer study with the regimes where these fail is bench/honesty.
 //
-// Realistic scan: a 2 µm GaAs-like slab (honestyTruth) measured 700–1000 nm
-// in 1 nm steps (301 points), σ_T = 0.002, reflection from n = 3.6,
-// converted to α by optics.ToAlpha exactly as the tool converts a real
-// scan. The fixed window is the automatic rule of edge.Analyze placed at the
-// truth, E_g − 6·E_U to E_g + 0.25 eV (161 points), and every fit starts at
-// the truth, which isolates the statistics from the start-value and window
-// logic; TestHonestyAnalyze runs the whole pipeline.
+// Realistic scan: a GaAs-like slab (honestyTruth), 2 µm unless stated,
+// measured 700–1000 nm in 1 nm steps (301 points), σ_T = 0.002, reflection
+// from n = 3.6. The tool's path is the one a real scan takes: the noisy T
+// goes through scan.Convert (optics.ToAlpha plus the transmission view)
+// and edge.Analyze, which fits in transmittance space. The fixed window is
+// the automatic rule placed at the truth, E_g − 6·E_U to E_g + 0.25 eV,
+// forced with Options.Window (the start values stay the tool's own);
+// TestHonestyAnalyze runs the automatic window as well.
 const (
 	honestySeed   = 20240607
 	honestyThick  = 2e-4 // cm
@@ -59,48 +63,65 @@ var honestyNames = []string{"E_g", "C", "E_U"}
 
 // honestyScan holds the noiseless scan and what every replica shares.
 type honestyScan struct {
-	truth  []float64
-	e      []float64 // 301 energies, ascending
-	refl   float64
-	t0     []float64 // noiseless T
-	alpha0 []float64 // noiseless α
-	sigma0 []float64 // σ_α of the noiseless scan (the true σ)
-	mask0  []bool
-	win    [2]float64
-	crb    *mat.SymDense // (JᵀWJ)⁻¹ at the truth over the window
+	truth         []float64
+	thick, sigmaT float64
+	stream        uint64    // noise stream of the tool replicas (see rng)
+	e             []float64 // 301 energies, ascending
+	refl          float64
+	t0            []float64 // noiseless T
+	alpha0        []float64 // noiseless α
+	sigma0        []float64 // σ_α = |∂α/∂T|·σ_T of the noiseless scan
+	mask0         []bool    // α mask of the noiseless scan
+	win           [2]float64
+	// crbAlpha is (JᵀWJ)⁻¹ at the truth over the window points of the
+	// noiseless α mask (the α fit's points); crbT over the points a
+	// transmittance fit keeps at the truth: predicted absorbance within
+	// the default floor of 3.5.
+	crbAlpha, crbT *mat.SymDense
 }
 
-func newHonestyScan(t *testing.T) *honestyScan {
+func newHonestyScan(t *testing.T, thick, sigmaT float64) *honestyScan {
 	t.Helper()
-	s := &honestyScan{truth: honestyTruth(), e: synth.WavelengthGrid(700, 1000, 1), refl: optics.FresnelR(honestyIndex, 0)}
+	s := &honestyScan{truth: honestyTruth(), thick: thick, sigmaT: sigmaT, e: synth.WavelengthGrid(700, 1000, 1), refl: optics.FresnelR(honestyIndex, 0)}
 	sc := synth.Transmittance(synth.Spec{Model: model.DirectUrbach{}, Params: s.truth, E: s.e,
-		Thickness: honestyThick, R: s.refl, SigmaT: honestySigmaT}, nil)
-	conv, err := optics.ToAlpha(s.e, sc.T, optics.Transmittance, honestyThick, &optics.Settings{RConst: s.refl, SigmaT: honestySigmaT})
+		Thickness: thick, R: s.refl, SigmaT: sigmaT}, nil)
+	conv, err := optics.ToAlpha(s.e, sc.T, optics.Transmittance, thick, &optics.Settings{RConst: s.refl, SigmaT: sigmaT})
 	if err != nil {
 		t.Fatal(err)
 	}
 	s.t0, s.alpha0, s.sigma0, s.mask0 = sc.T, sc.Alpha, conv.Sigma, conv.Mask
 	eg, eu := s.truth[0], s.truth[2]
 	s.win = [2]float64{eg - edge.DefaultTailWidth*eu, eg + edge.DefaultAboveGap}
-	var ew, sw []float64
+	floor := math.Pow(10, -optics.DefaultMaxAbsorbance)
+	var ea, sa, et, st []float64
 	for i, e := range s.e {
-		if s.mask0[i] && e >= s.win[0] && e <= s.win[1] {
-			ew = append(ew, e)
-			sw = append(sw, s.sigma0[i])
+		if e < s.win[0] || e > s.win[1] {
+			continue
+		}
+		if s.mask0[i] {
+			ea = append(ea, e)
+			sa = append(sa, s.sigma0[i])
+		}
+		if s.t0[i] >= floor {
+			et = append(et, e)
+			st = append(st, s.sigma0[i])
 		}
 	}
-	if len(ew) < 100 {
-		t.Fatalf("only %d points in the window %v: the scan is not the one described", len(ew), s.win)
+	if len(ea) < 20 || len(et) < 20 {
+		t.Fatalf("only %d (α) and %d (T) points in the window %v: the scan is not the one described", len(ea), len(et), s.win)
 	}
-	s.crb = cramerRao(t, ew, sw, s.truth)
+	s.crbAlpha = cramerRao(t, ea, sa, s.truth)
+	s.crbT = cramerRao(t, et, st, s.truth)
 	return s
 }
 
 // cramerRao returns (JᵀWJ)⁻¹ with J the analytic Jacobian of DirectUrbach
 // at p and W = diag(1/σ²), equilibrated before the Cholesky factorisation
 // (the parameters differ by seven orders of magnitude). For T data with
-// Gaussian σ_T the Fisher information is the same, because α_i is a
-// one-to-one function of T_i with σ_α = |∂α/∂T|·σ_T.
+// Gaussian σ_T the Fisher information of point i is
+// (∂T_i/∂p)ᵀ(∂T_i/∂p)/σ_T² = (∂α_i/∂p)ᵀ(∂α_i/∂p)/σ_α,i² with
+// σ_α = |∂α/∂T|·σ_T, so the same function serves both fits; they differ in
+// the points. It returns nil when the information is singular.
 func cramerRao(t *testing.T, e, sigma, p []float64) *mat.SymDense {
 	t.Helper()
 	n := len(p)
@@ -125,11 +146,11 @@ func cramerRao(t *testing.T, e, sigma, p []float64) *mat.SymDense {
 	}
 	var ch mat.Cholesky
 	if !ch.Factorize(&f) {
-		t.Fatal("Fisher information is not positive definite")
+		return nil // degenerate scans: checkHonesty refuses a nil bound
 	}
 	inv := mat.NewSymDense(n, nil)
 	if err := ch.InverseTo(inv); err != nil {
-		t.Fatal(err)
+		return nil
 	}
 	for a := range n {
 		for b := a; b < n; b++ {
@@ -139,51 +160,112 @@ func cramerRao(t *testing.T, e, sigma, p []float64) *mat.SymDense {
 	return inv
 }
 
-// noise says how a replica is made.
-type noise int
-
-const (
-	// alphaNoise: α_i = α(E_i) + σ_i·N(0, 1), weights 1/σ_i² with the true
-	// σ_i: the textbook case the covariance formula assumes.
-	alphaNoise noise = iota
-	// transmittanceNoise: T_i + σ_T·N(0, 1) converted by optics.ToAlpha,
-	// weights from the σ_α it returns (computed from the noisy T), as the
-	// tool does with a real scan.
-	transmittanceNoise
-)
-
-// replicaData returns replica i's α, σ_α and mask over the whole scan.
-func (s *honestyScan) replicaData(t *testing.T, kind noise, i int) (alpha, sigma []float64, mask []bool) {
-	rng := rand.New(rand.NewPCG(honestySeed, uint64(kind)<<32|uint64(i)))
-	n := len(s.e)
-	if kind == alphaNoise {
-		alpha = make([]float64, n)
-		for k := range alpha {
-			alpha[k] = s.alpha0[k] + s.sigma0[k]*rng.NormFloat64()
-		}
-		return alpha, s.sigma0, s.mask0
-	}
-	tr := make([]float64, n)
-	for k := range tr {
-		tr[k] = s.t0[k] + honestySigmaT*rng.NormFloat64()
-	}
-	conv, err := optics.ToAlpha(s.e, tr, optics.Transmittance, honestyThick, &optics.Settings{RConst: s.refl, SigmaT: honestySigmaT})
-	if err != nil {
-		t.Errorf("replica %d: %v", i, err)
-		return nil, nil, nil
-	}
-	return conv.Alpha, conv.Sigma, conv.Mask
+// rng returns replica i's generator: PCG(honestySeed, k·2³² + i), stream
+// k = 0 for the α replicas and 1 + the case number for the tool replicas,
+// so that the cases do not share their noise.
+func (s *honestyScan) rng(k uint64, i int) *rand.Rand {
+	return rand.New(rand.NewPCG(honestySeed, k<<32|uint64(i)))
 }
 
-// estimate is one replica's estimates, standard errors and intervals.
+// alphaReplica is the textbook case: α_i = α(E_i) + σ_i·N(0, 1) with the
+// true σ_i as weights, fitted with fit.Fit from the truth over the fixed
+// window (the α mask of the noiseless scan).
+func (s *honestyScan) alphaReplica(i int) estimate {
+	rng := s.rng(0, i)
+	var e, a, w []float64
+	for k, ek := range s.e {
+		v := s.alpha0[k] + s.sigma0[k]*rng.NormFloat64()
+		if s.mask0[k] && ek >= s.win[0] && ek <= s.win[1] {
+			e = append(e, ek)
+			a = append(a, v)
+			w = append(w, 1/(s.sigma0[k]*s.sigma0[k]))
+		}
+	}
+	r, err := fit.Fit(context.Background(), fit.Problem{E: e, Alpha: a, Weights: w, Model: model.DirectUrbach{}, Init: s.truth},
+		&fit.Settings{AbsoluteSigma: true})
+	if err != nil {
+		return estimate{}
+	}
+	e2 := estimate{ok: !r.Status.Early() && r.Cov != nil, p: r.Params, se: r.StdErr, dof: r.DoF}
+	for _, b := range r.AtBound {
+		if b {
+			e2.ok = false
+		}
+	}
+	return e2
+}
+
+// toolReplica adds Gaussian noise σ_T to the noiseless T and analyses it
+// the way the tool analyses a real scan: scan.Convert (σ_T given, R from
+// n = 3.6) and edge.Analyze with opt.
+func (s *honestyScan) toolReplica(t *testing.T, i int, opt edge.Options) estimate {
+	rng := s.rng(s.stream, i)
+	tr := make([]float64, len(s.e))
+	for k := range tr {
+		tr[k] = s.t0[k] + s.sigmaT*rng.NormFloat64()
+	}
+	set := scan.Settings{Thickness: s.thick, TNoise: s.sigmaT, Index: honestyIndex}
+	d, _, _, err := scan.Convert(&specio.Spectrum{E: s.e, Y: tr, Kind: specio.Transmittance}, set, set.Index)
+	if err != nil {
+		t.Errorf("replica %d: %v", i, err)
+		return estimate{}
+	}
+	res, err := edge.Analyze(context.Background(), d, opt)
+	if err != nil {
+		if !errors.Is(err, fit.ErrSingular) {
+			t.Errorf("replica %d: %v", i, err)
+		}
+		return estimate{}
+	}
+	return fromResult(res)
+}
+
+// estimate is one replica's estimates and standard errors, as presented.
 type estimate struct {
 	ok       bool
 	p, se    []float64
-	ci68     [][2]float64
-	ci95     [][2]float64
+	dof      int
 	budgetU  []float64 // edge.Analyze's combined standard uncertainties
 	tailOnly bool
+	withheld bool // a statistical term was withheld (near-degenerate)
 	warned   bool // edge.Analyze gave at least one warning
+	space    string
+}
+
+// fromResult returns what edge.Analyze presents. It is not ok when the
+// fit stopped early, a parameter ended on its bound, or a standard error
+// is not available (singular or withheld); each of these carries a
+// warning.
+func fromResult(res *edge.Result) estimate {
+	e := estimate{ok: res.Converged, dof: res.DoF, tailOnly: res.TailOnly, warned: len(res.Warnings) > 0, space: res.Space}
+	for _, p := range res.Params {
+		e.p = append(e.p, p.Value)
+		e.se = append(e.se, p.StdErr)
+		if p.AtBound || !(p.StdErr > 0) {
+			e.ok = false
+		}
+		if p.StatWithheld {
+			e.withheld = true
+		}
+	}
+	for _, key := range []string{"eg", "amp", "eu"} {
+		e.budgetU = append(e.budgetU, res.Budgets[key].Combined)
+	}
+	return e
+}
+
+// honestyCount returns the replica count full, or reduced under -short and
+// under the race detector. Under -race (what CI runs) the fits are about
+// eight times slower, and the full counts cost about 90 s of CPU in this
+// package alone; the reduced counts keep it near 15 s and still resolve
+// every failure the study documented before the transmittance fit (the
+// tolerances widen to 3 sampling standard errors, see tolerance). The
+// full counts run in plain `go test`.
+func honestyCount(full, reduced int) int {
+	if testing.Short() || raceEnabled {
+		return reduced
+	}
+	return full
 }
 
 // parallel runs f(i) for i < n on GOMAXPROCS workers; results are stored
@@ -207,20 +289,6 @@ func parallel(n int, f func(i int) estimate) []estimate {
 	return out
 }
 
-// fromFit returns the estimate of a fit; it is not ok when the fit stopped
-// early, a parameter ended on its bound (the interval is then not
-// meaningful, and edge.Analyze says so in a warning) or the covariance is
-// singular (NaN standard errors).
-func fromFit(r *fit.Result) estimate {
-	e := estimate{ok: !r.Status.Early() && r.Cov != nil, p: r.Params, se: r.StdErr, ci68: r.ConfInt(0.683), ci95: r.ConfInt(0.95)}
-	for _, b := range r.AtBound {
-		if b {
-			e.ok = false
-		}
-	}
-	return e
-}
-
 // tolerance returns the larger of the issue's tolerance spec and three
 // sampling standard errors se of the checked statistic: with the full
 // replica counts the spec is the binding one; with the -short counts the
@@ -238,8 +306,11 @@ type honestyCheck struct {
 
 // checkHonesty applies (a)–(c) to the estimates; maxFailed is the largest
 // number of replicas allowed to have no usable estimate.
-func checkHonesty(t *testing.T, s *honestyScan, est []estimate, checks []honestyCheck, maxFailed int) {
+func checkHonesty(t *testing.T, crb *mat.SymDense, truth []float64, est []estimate, checks []honestyCheck, maxFailed int) {
 	t.Helper()
+	if crb == nil {
+		t.Fatal("no Cramér–Rao bound: the Fisher information of this scan is singular")
+	}
 	var ok []estimate
 	for _, e := range est {
 		if e.ok {
@@ -270,7 +341,7 @@ func checkHonesty(t *testing.T, s *honestyScan, est []estimate, checks []honesty
 	for _, c := range checks {
 		j := c.param
 		name := honestyNames[j]
-		truth := s.truth[j]
+		truth := truth[j]
 		var sum, sum2, sumSE float64
 		var t68, t95, z1, z196 int
 		for _, e := range ok {
@@ -278,10 +349,11 @@ func checkHonesty(t *testing.T, s *honestyScan, est []estimate, checks []honesty
 			sum += d
 			sum2 += d * d
 			sumSE += e.se[j]
-			if e.ci68[j][0] <= truth && truth <= e.ci68[j][1] {
+			st := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(e.dof)}
+			if math.Abs(d) <= st.Quantile((1+0.683)/2)*e.se[j] {
 				t68++
 			}
-			if e.ci95[j][0] <= truth && truth <= e.ci95[j][1] {
+			if math.Abs(d) <= st.Quantile((1+0.95)/2)*e.se[j] {
 				t95++
 			}
 			if math.Abs(d) <= e.se[j] {
@@ -294,7 +366,7 @@ func checkHonesty(t *testing.T, s *honestyScan, est []estimate, checks []honesty
 		bias := sum / fn
 		sd := math.Sqrt((sum2 - fn*bias*bias) / (fn - 1))
 		meanSE := sumSE / fn
-		crb := math.Sqrt(s.crb.At(j, j))
+		crb := math.Sqrt(crb.At(j, j))
 		t.Logf("%s: n %d, sd/√CRB %.4f, mean SE/sd %.4f, bias/SE %+.4f, coverage t68.3 %.2f %%, t95 %.2f %%, ±1SE %.2f %%, ±1.96SE %.2f %%",
 			name, n, sd/crb, meanSE/sd, bias/meanSE, 100*float64(t68)/fn, 100*float64(t95)/fn, 100*float64(z1)/fn, 100*float64(z196)/fn)
 		if c.efficiency && math.Abs(sd/crb-1) > tolEff {
@@ -306,8 +378,8 @@ func checkHonesty(t *testing.T, s *honestyScan, est []estimate, checks []honesty
 				hits     int
 				nom, tol float64
 			}{
-				{"ConfInt(0.683)", t68, 0.683, tol68},
-				{"ConfInt(0.95)", t95, 0.95, tol95},
+				{"Student-t 68.3 %", t68, 0.683, tol68},
+				{"Student-t 95 %", t95, 0.95, tol95},
 				{"±1 SE", z1, 0.683, tol68},
 				{"±1.96 SE", z196, 0.95, tol95},
 			} {
@@ -322,127 +394,106 @@ func checkHonesty(t *testing.T, s *honestyScan, est []estimate, checks []honesty
 	}
 }
 
-// TestHonestyFixedWindow runs (a)–(c) over 6,000 replicas (600 under
-// -short) for two noise models.
+// TestHonestyFixedWindow runs (a)–(c) on every parameter over a fixed
+// window, for the textbook case and for the tool's own path.
 //
-// "alpha-gaussian" is the textbook case: Gaussian α noise with the true σ as
-// weights. Every parameter must pass every check.
+// "alpha-gaussian" is the textbook case: Gaussian α noise with the true σ
+// as weights, fitted with fit.Fit from the truth.
 //
-// "transmittance" is the tool's own path: Gaussian T noise converted by
-// optics.ToAlpha, weighted by the σ_α it computes from the noisy T. E_g and
-// E_U must pass every check. The amplitude C must pass (a) and (b) but not
-// (c): weighting by σ_α = |∂α/∂T|σ_T evaluated at the noisy T gives points
-// whose T fluctuated up (α down) more weight, which biases C low by about
-// 1.5·(σ_T/T)·σ_α per point (a second-order effect of data-dependent
-// weights); this test measures about −0.26 standard errors for C on this
-// scan, bench/honesty −0.46 on its 0.3 nm, 535-point version, and −1.1 at
-// σ_T = 0.005 or −1.5 for a 10 µm slab, where E_g is biased too. The
-// check stays off for C until the weights are computed from the model
-// rather than from the data; it is reported, not hidden.
+// The "tool" cases put Gaussian noise on T and run scan.Convert and
+// edge.Analyze (window forced at the truth, no window budget), which fit
+// in transmittance space. Before that fix the tool fitted α with σ_α from
+// the noisy T and a noise-dependent mask, and these very cases failed (c)
+// and, for the thick slab, (b): on this 301-point scan C was biased by
+// −0.26 standard errors at 2 µm; bench/honesty (1000 points) measured
+// −0.45 (2 µm), −1.1 (σ_T = 0.005) and, for a 10 µm slab, E_g at −1.25
+// with 39 %/76 % coverage, without a warning. Every check is on for every
+// parameter; no failure is allowed, since none of these fits is
+// near-degenerate.
+//
+// Replica counts: 6,000 for the α case; for the tool cases, which run the
+// whole conversion and the constructions per replica, 2,000: there (b) at
+// 68.3 % is checked to 3 binomial standard errors (3.1 points) rather than
+// the ±2 of the spec, (b) at 95 % to the spec's ±1.5 (3 binomial standard
+// errors are 1.46), (c) to the spec's 0.1 standard errors (3/√2000 =
+// 0.067) and (a) to the spec's 10 %. Under -short and -race (honestyCount)
+// 1,000 and 500: for 500, (b) to 6.2 and 2.9 points, (c) to 0.134 standard
+// errors, (a) to the spec, which still fails each of the documented
+// failures of the α fit (C at −0.26 SE here, E_g at −1.25 SE and 39 %
+// coverage for 10 µm). bench/results/honesty-20000.txt holds the same
+// regimes (1000-point scan) with 20,000 replicas, all within the spec.
 func TestHonestyFixedWindow(t *testing.T) {
-	n := 6000
-	if testing.Short() {
-		n = 600
-	}
-	s := newHonestyScan(t)
 	all := []honestyCheck{{0, true, true, true}, {1, true, true, true}, {2, true, true, true}}
 	tests := []struct {
-		name   string
-		kind   noise
-		checks []honestyCheck
+		name          string
+		thick, sigmaT float64
+		tool          bool
+		n, nShort     int
 	}{
-		{name: "alpha-gaussian", kind: alphaNoise, checks: all},
-		{name: "transmittance", kind: transmittanceNoise, checks: []honestyCheck{{0, true, true, true}, {1, true, true, false}, {2, true, true, true}}},
+		{name: "alpha-gaussian", thick: honestyThick, sigmaT: honestySigmaT, n: 6000, nShort: 1000},
+		{name: "tool/2um", thick: honestyThick, sigmaT: honestySigmaT, tool: true, n: 2000, nShort: 500},
+		{name: "tool/2um-sigmaT0.005", thick: honestyThick, sigmaT: 0.005, tool: true, n: 2000, nShort: 500},
+		{name: "tool/10um", thick: 10e-4, sigmaT: honestySigmaT, tool: true, n: 2000, nShort: 500},
 	}
-	for _, tc := range tests {
+	for k, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			est := parallel(n, func(i int) estimate {
-				alpha, sigma, mask := s.replicaData(t, tc.kind, i)
-				if alpha == nil {
-					return estimate{}
+			n := honestyCount(tc.n, tc.nShort)
+			s := newHonestyScan(t, tc.thick, tc.sigmaT)
+			s.stream = uint64(1 + k)
+			if !tc.tool {
+				checkHonesty(t, s.crbAlpha, s.truth, parallel(n, s.alphaReplica), all, 0)
+				return
+			}
+			opt := edge.Options{Window: s.win, NoWindowBudget: true}
+			est := parallel(n, func(i int) estimate { return s.toolReplica(t, i, opt) })
+			for i, e := range est {
+				if e.space != edge.SpaceTransmittance && e.p != nil {
+					t.Fatalf("replica %d fitted in %q, want %q", i, e.space, edge.SpaceTransmittance)
 				}
-				var e, a, w []float64
-				for k, ek := range s.e {
-					if mask[k] && ek >= s.win[0] && ek <= s.win[1] {
-						e = append(e, ek)
-						a = append(a, alpha[k])
-						w = append(w, 1/(sigma[k]*sigma[k]))
-					}
-				}
-				r, err := fit.Fit(context.Background(), fit.Problem{E: e, Alpha: a, Weights: w, Model: model.DirectUrbach{}, Init: s.truth},
-					&fit.Settings{AbsoluteSigma: true})
-				if err != nil {
-					return estimate{}
-				}
-				return fromFit(r)
-			})
-			checkHonesty(t, s, est, tc.checks, 0)
+			}
+			checkHonesty(t, s.crbT, s.truth, est, all, 0)
 		})
 	}
 }
 
-// TestHonestyAnalyze runs the whole edge.Analyze pipeline (start values,
-// automatic window, fit, budgets) on 400 replicas (100 under -short) of the
-// "transmittance" scan of TestHonestyFixedWindow and checks (a)–(c) on the
-// statistical part for E_g and E_U, with the tolerance widened to three
-// sampling standard errors where 400 replicas cannot resolve the spec
-// (e.g. 7.0 points at 68.3 %, 3.3 at 95 %). It also checks that the
-// combined budget, which adds the spread over the window family to the
-// statistical term, covers at least as often as nominal at k = 1 and 2
-// (one-sided: the window term is a Type B allowance and may over-cover),
-// and that no replica of this clean scan is flagged as tail-only.
+// TestHonestyAnalyze runs the whole tool (scan.Convert, then edge.Analyze
+// with its start values, automatic window and budgets) on 400 replicas
+// (100 under -short) of the 2 µm scan and checks (a)–(c) for every
+// parameter, with the tolerance widened to three sampling standard errors
+// where 400 replicas cannot resolve the spec (e.g. 7.0 points at 68.3 %,
+// 3.3 at 95 %). It also checks that the combined budget, which adds the
+// spread over the window family to the statistical term, covers at least
+// as often as nominal at k = 1 and 2 (one-sided: the window term is a Type
+// B allowance and may over-cover), and that no replica of this clean scan
+// is flagged as tail-only or near-degenerate. A replica that fails must
+// say so in a warning.
 func TestHonestyAnalyze(t *testing.T) {
-	n := 400
-	if testing.Short() {
-		n = 100
-	}
-	s := newHonestyScan(t)
-	est := parallel(n, func(i int) estimate {
-		alpha, sigma, mask := s.replicaData(t, transmittanceNoise, i)
-		if alpha == nil {
-			return estimate{}
-		}
-		res, err := edge.Analyze(context.Background(), edge.Data{E: s.e, Alpha: alpha, Sigma: sigma, Mask: mask, SigmaKnown: true}, edge.Options{})
-		if err != nil {
-			if !errors.Is(err, fit.ErrSingular) {
-				t.Errorf("replica %d: %v", i, err)
-			}
-			return estimate{}
-		}
-		e := fromFit(res.Fit)
-		e.tailOnly = res.TailOnly
-		e.warned = len(res.Warnings) > 0
-		for _, key := range []string{"eg", "amp", "eu"} {
-			e.budgetU = append(e.budgetU, res.Budgets[key].Combined)
-		}
-		return e
-	})
-	// A few replicas end in a local minimum with E_U on its lower bound
-	// and χ²_red ≈ 30 (4 of 1,000 in bench/honesty; a poor Urbach-plot
-	// start, e.g. E_U = 49 meV). Allow 1 % of them, but each must carry a
-	// warning: the pipeline may fail, never silently.
-	checkHonesty(t, s, est, []honestyCheck{{0, true, true, true}, {2, true, true, true}}, n/100)
+	n := honestyCount(400, 100)
+	s := newHonestyScan(t, honestyThick, honestySigmaT)
+	s.stream = 10
+	est := parallel(n, func(i int) estimate { return s.toolReplica(t, i, edge.Options{}) })
+	// A fit may end in a local minimum from a poor start (bench/honesty:
+	// none in 2,000 pipeline replicas of this scan after the fix, 4 in
+	// 1,000 before it). Allow 1 %, each with a warning.
+	checkHonesty(t, s.crbT, s.truth, est, []honestyCheck{{0, true, true, true}, {1, true, true, true}, {2, true, true, true}}, n/100)
+	var ok int
 	for i, e := range est {
 		if !e.ok && e.p != nil && !e.warned {
-			t.Errorf("replica %d: the fit ended on a bound or did not converge without a warning", i)
+			t.Errorf("replica %d: the fit failed without a warning", i)
 		}
-	}
-
-	var ok int
-	for _, e := range est {
+		if e.tailOnly || e.withheld {
+			t.Errorf("replica %d of a 2 µm scan flagged (tail only %v, statistics withheld %v)", i, e.tailOnly, e.withheld)
+		}
 		if e.ok {
 			ok++
 		}
 	}
 	fn := float64(ok)
-	for _, j := range []int{0, 2} {
-		var k1, k2, tail int
+	for _, j := range []int{0, 1, 2} {
+		var k1, k2 int
 		for _, e := range est {
 			if !e.ok {
 				continue
-			}
-			if e.tailOnly {
-				tail++
 			}
 			d := math.Abs(e.p[j] - s.truth[j])
 			if d <= e.budgetU[j] {
@@ -460,8 +511,54 @@ func TestHonestyAnalyze(t *testing.T) {
 		if tol := tolerance(0.015, math.Sqrt(0.95*0.05/fn)); q2 < 0.95-tol {
 			t.Errorf("%s: ±2u_c covers %.2f %%, want at least %.1f %%", honestyNames[j], 100*q2, 100*(0.95-tol))
 		}
-		if tail > 0 {
-			t.Errorf("%d replicas of a 2 µm scan flagged as tail-only", tail)
-		}
+	}
+}
+
+// TestHonestyDegenerate checks the rules that keep the tool from
+// presenting a gap its data do not determine, on the tool's path
+// (automatic window), against the regimes of bench/honesty:
+//
+//   - 40 and 50 µm slabs show only the tail: the study's intervals there
+//     are not honest (reported SE 2.5–5 times the spread, 95 % intervals
+//     covering 92 % and 85 %), and the tail-only rule flags 99.7 % and
+//     97.9 % of the replicas, the rest being singular or withheld
+//     (|corr(E_g, C)| > 0.999). No replica may be presented with a
+//     combined uncertainty of E_g, and each must carry a warning.
+//   - A 20 µm slab still shows enough of the band after the fix in
+//     transmittance: the study finds E_g honest there (66.5/95.2 %
+//     coverage, bias +0.03 SE over 2,000 replicas) and flags none, so
+//     none of these replicas may be flagged (the α fit before the fix
+//     flagged all 2,000 as tail-only).
+//
+// 40 replicas of each (12 under -short): a rule that fires in 97.9 % of
+// cases fails on all 40 with probability 0.979⁴⁰ ≈ 0.43, so "every replica
+// flagged" counts singular fits and withheld statistics too.
+func TestHonestyDegenerate(t *testing.T) {
+	n := honestyCount(40, 12)
+	for k, tc := range []struct {
+		name    string
+		thick   float64
+		flagged bool
+	}{
+		{"20um", 20e-4, false},
+		{"40um", 40e-4, true},
+		{"50um", 50e-4, true},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			s := newHonestyScan(t, tc.thick, honestySigmaT)
+			s.stream = uint64(20 + k)
+			est := parallel(n, func(i int) estimate { return s.toolReplica(t, i, edge.Options{}) })
+			for i, e := range est {
+				presented := e.p != nil && !e.tailOnly && !e.withheld && !math.IsNaN(e.budgetU[0])
+				switch {
+				case tc.flagged && presented:
+					t.Errorf("replica %d: E_g = %.5g ± %.2g presented as determined", i, e.p[0], e.budgetU[0])
+				case tc.flagged && !e.warned:
+					t.Errorf("replica %d: flagged without a warning", i)
+				case !tc.flagged && !presented:
+					t.Errorf("replica %d: E_g not presented (tail only %v, withheld %v, fit ok %v)", i, e.tailOnly, e.withheld, e.ok)
+				}
+			}
+		})
 	}
 }

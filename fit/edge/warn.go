@@ -83,6 +83,12 @@ func (r *Result) warn(d Data, m model.Model, ieg, iamp int) {
 func (r *Result) budgetWarnings() {
 	for _, key := range r.BudgetKeys() {
 		b := r.Budgets[key]
+		if p, ok := r.Param(key); ok && p.StatWithheld {
+			continue // said by the near-degeneracy warning
+		}
+		if p, ok := r.Param("amp"); key == "ep" && ok && p.StatWithheld {
+			continue // E_P ∝ C
+		}
 		if math.IsNaN(b.Combined) && !r.TailOnly {
 			r.Warnings = append(r.Warnings, fmt.Sprintf("the uncertainty of %s is incomplete: a budget term could not be evaluated", b.Quantity))
 		}

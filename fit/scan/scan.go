@@ -315,7 +315,11 @@ const (
 // Convert turns a spectrum into fit data with the reflectance chosen by
 // the precedence of Settings.Reflectance (constant R, then a measured R
 // column, then the Fresnel R of index n, else none). It also returns the
-// conversion and a description of the reflectance used.
+// conversion and a description of the reflectance used. For transmittance
+// and absorbance input the data carry the transmission view
+// (edge.Data.Transmission: T, R per point, σ_T, thickness, floor), so that
+// the edge is fitted in transmittance space; α input is fitted in α with
+// relative weights.
 func Convert(sp *specio.Spectrum, s Settings, n float64) (edge.Data, *optics.Result, string, error) {
 	kind, err := opticsKind(sp.Kind)
 	if err != nil {
@@ -346,6 +350,13 @@ func Convert(sp *specio.Spectrum, s Settings, n float64) (edge.Data, *optics.Res
 	}
 	data := edge.Data{E: sp.E, Alpha: conv.Alpha, Sigma: conv.Sigma, Mask: conv.Mask,
 		SigmaKnown: s.TNoise > 0 && kind != optics.AlphaInput, RelativeSigma: conv.RelativeWeights}
+	if kind != optics.AlphaInput {
+		// The fit itself runs in transmittance space, where the
+		// photometric noise is Gaussian with a constant σ_T (see
+		// edge.Transmission); α, σ_α and the mask above serve the start
+		// values, the constructions and the report.
+		data.Transmission = &edge.Transmission{T: conv.T, R: conv.R, SigmaT: conv.SigmaT, Thickness: d, MaxAbsorbance: conv.MaxAbsorbance}
+	}
 	return data, conv, how, nil
 }
 

@@ -90,3 +90,29 @@ func SlabTransmittance(alpha, r, dcm float64) float64 {
 	}
 	return (1 - r) * (1 - r) * x / (1 - r*r*x*x)
 }
+
+// SlabTransmittanceGrad returns SlabTransmittance(alpha, r, dcm) and its
+// derivative with respect to α (in cm, i.e. per cm⁻¹): with
+// a = (1 − R)² and x = exp(−α d),
+//
+//	T = a x / (1 − R² x²),
+//	dT/dα = −d · a x (1 + R² x²) / (1 − R² x²)²
+//
+// (dT/dx = a(1 + R²x²)/(1 − R²x²)² and dx/dα = −d x). It is the chain-rule
+// factor of a fit in transmittance space, ∂T/∂p = (dT/dα)·∂α/∂p. Both
+// values are NaN where SlabTransmittance is.
+func SlabTransmittanceGrad(alpha, r, dcm float64) (t, dTdAlpha float64) {
+	if !(r >= 0 && r < 1 && dcm > 0) {
+		return math.NaN(), math.NaN()
+	}
+	x := math.Exp(-alpha * dcm)
+	q := r * x
+	if q >= 1 || math.IsNaN(x) {
+		return math.NaN(), math.NaN()
+	}
+	a := (1 - r) * (1 - r)
+	den := 1 - r*r*x*x
+	t = a * x / den // the expression of SlabTransmittance, bit for bit
+	dTdAlpha = -dcm * a * x * (1 + q*q) / (den * den)
+	return t, dTdAlpha
+}

@@ -146,3 +146,31 @@ func TestSlabDomain(t *testing.T) {
 		t.Errorf("SlabTransmittance with d = 0 = %v, want NaN", v)
 	}
 }
+
+// TestSlabTransmittanceGrad compares dT/dα with central differences of
+// SlabTransmittance of step h = 1e-5/d in α (truncation ~1e-10 relative,
+// rounding ~1e-11): tolerance 1e-7 relative, 1e-13 cm absolute (where T
+// itself underflows towards zero). The value must equal SlabTransmittance
+// exactly, and the domain is the same (NaN at R·x ≥ 1, d ≤ 0).
+func TestSlabTransmittanceGrad(t *testing.T) {
+	const d = 2e-4
+	for _, r := range []float64{0, 0.04, 0.32, 0.65} {
+		for _, ad := range []float64{-0.2, 0, 1e-4, 0.01, 0.5, 2, 8, 20} {
+			a := ad / d
+			tr, g := SlabTransmittanceGrad(a, r, d)
+			if want := SlabTransmittance(a, r, d); tr != want {
+				t.Fatalf("R=%v αd=%v: T = %v, SlabTransmittance %v", r, ad, tr, want)
+			}
+			h := 1e-5 / d
+			fd := (SlabTransmittance(a+h, r, d) - SlabTransmittance(a-h, r, d)) / (2 * h)
+			if !scalar.EqualWithinAbsOrRel(g, fd, 1e-13, 1e-7) {
+				t.Errorf("R=%v αd=%v: dT/dα = %.10g, fd %.10g", r, ad, g, fd)
+			}
+		}
+	}
+	for _, c := range []struct{ a, r, d float64 }{{-1e4, 0.3, 0.05}, {1, 0.3, 0}, {1, 1, 0.1}, {math.NaN(), 0.3, 0.1}} {
+		if tr, g := SlabTransmittanceGrad(c.a, c.r, c.d); !math.IsNaN(tr) || !math.IsNaN(g) {
+			t.Errorf("SlabTransmittanceGrad(%v, %v, %v) = %v, %v; want NaN", c.a, c.r, c.d, tr, g)
+		}
+	}
+}

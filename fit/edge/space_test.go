@@ -1,0 +1,66 @@
+package edge_test
+
+import (
+	"math"
+	"testing"
+
+	"gonum.org/v1/gonum/floats/scalar"
+
+	"bandedge/fit/edge"
+	"bandedge/fit/scan"
+	"bandedge/io/specio"
+	"bandedge/model"
+	"bandedge/model/optics"
+	"bandedge/model/synth"
+)
+
+// TestConvertSpace: scan.Convert gives transmittance and absorbance input
+// the transmission view (so that edge.Analyze fits in T), with T = 10^(−A)
+// for absorbance, the reflectance of the index (Fresnel, n = 3.6:
+// ((n − 1)/(n + 1))² = 0.31947), the thickness and σ_T; α input has none
+// and is fitted in α with relative weights.
+func TestConvertSpace(t *testing.T) {
+	e := synth.WavelengthGrid(700, 1000, 1)
+	sc := synth.Transmittance(synth.Spec{Model: model.DirectUrbach{}, Params: honestyTruth(), E: e, Thickness: 2e-4, R: optics.FresnelR(3.6, 0)}, nil)
+	absorb := make([]float64, len(e))
+	for i, v := range sc.T {
+		absorb[i] = -math.Log10(v)
+	}
+	set := scan.Settings{Thickness: 2e-4, TNoise: 0.002, Index: 3.6}
+	for _, tc := range []struct {
+		name  string
+		kind  specio.YKind
+		y     []float64
+		space string
+	}{
+		{"transmittance", specio.Transmittance, sc.T, edge.SpaceTransmittance},
+		{"absorbance", specio.Absorbance, absorb, edge.SpaceTransmittance},
+		{"alpha", specio.Alpha, sc.Alpha, edge.SpaceAlpha},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			d, _, _, err := scan.Convert(&specio.Spectrum{E: e, Y: tc.y, Kind: tc.kind}, set, set.Index)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if got := d.Space(); got != tc.space {
+				t.Fatalf("space %q, want %q", got, tc.space)
+			}
+			if tc.space == edge.SpaceAlpha {
+				if d.Transmission != nil || !d.RelativeSigma {
+					t.Errorf("α input: transmission view %v, relative weights %v", d.Transmission, d.RelativeSigma)
+				}
+				return
+			}
+			tr := d.Transmission
+			if tr.Thickness != 2e-4 || tr.SigmaT != 0.002 {
+				t.Errorf("thickness %v, σ_T %v", tr.Thickness, tr.SigmaT)
+			}
+			for i := range e {
+				// 1e-12: 10^(−A) of −log₁₀T round-trips to a few ulp.
+				if !scalar.EqualWithinRel(tr.T[i], sc.T[i], 1e-12) || !scalar.EqualWithinAbs(tr.R[i], 0.31947, 5e-6) {
+					t.Fatalf("point %d: T %v (want %v), R %v", i, tr.T[i], sc.T[i], tr.R[i])
+				}
+			}
+		})
+	}
+}
