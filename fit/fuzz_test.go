@@ -16,7 +16,8 @@ import (
 // and states the contract of the package: never a panic; either a start
 // error, with a nil Result, that wraps one of the sentinels, or a Result
 // whose parameters are finite and within the bounds, with no error or one
-// that wraps ErrSingular or ErrZeroDoF.
+// that wraps ErrSingular or ErrZeroDoF; a return within fuzzDeadline and
+// fuzzMaxAlloc.
 func FuzzFit(f *testing.F) {
 	enc := func(vals ...float64) []byte {
 		b := make([]byte, 8*len(vals))
@@ -55,8 +56,12 @@ func FuzzFit(f *testing.F) {
 			v = v[3:]
 		}
 		for _, m := range []model.Model{bounded, misra1aFD{bounded}} {
-			res, err := fit.Fit(context.Background(), fit.Problem{E: e, Alpha: a, Weights: w, Model: m, Init: init},
-				&fit.Settings{MaxIterations: 50})
+			var res *fit.Result
+			var err error
+			fzBound(t, fuzzDeadline, fuzzMaxAlloc, "Fit", func() {
+				res, err = fit.Fit(context.Background(), fit.Problem{E: e, Alpha: a, Weights: w, Model: m, Init: init},
+					&fit.Settings{MaxIterations: 50})
+			})
 			if res == nil {
 				ok := false
 				for _, s := range sentinels {

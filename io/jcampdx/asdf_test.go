@@ -175,7 +175,10 @@ func TestRoundTrip(t *testing.T) {
 			}
 			table = strings.Join(lines, "\n") + "\n"
 		}
-		in := header("1/CM", "ABSORBANCE", fmt.Sprintf("##FIRSTX= %g", first), fmt.Sprintf("##LASTX= %g", x(n-1)),
+		// The ordinates are arbitrary integers, so YUNITS is α (1/CM),
+		// which the reader does not judge for plausibility (absorbance
+		// negative everywhere or with a median above 10 is rejected).
+		in := header("1/CM", "1/CM", fmt.Sprintf("##FIRSTX= %g", first), fmt.Sprintf("##LASTX= %g", x(n-1)),
 			fmt.Sprintf("##NPOINTS= %d", n)) + "##XYDATA=(X++(Y..Y))\n" + table + "##END=\n"
 		t.Run(fmt.Sprintf("seed%d/%s/n%d/per%d", seed, form, n, perLine), func(t *testing.T) {
 			s, err := NewReader(strings.NewReader(in), "rt.jdx").Read()

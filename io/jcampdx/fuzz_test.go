@@ -6,7 +6,9 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"runtime/metrics"
 	"testing"
+	"time"
 
 	"bandedge/io/specio"
 )
@@ -19,11 +21,16 @@ import (
 // the input and by NPOINTS ≤ MaxPoints. cfg picks one of several valid
 // option sets. Seeds: the example files, the TestRead inputs and the corpus
 // in testdata/fuzz/FuzzRead.
+// Every read returns within fzDeadline and allocates at most
+// fzMaxAlloc(len(data)) bytes.
 func FuzzRead(f *testing.F) {
 	files, err := filepath.Glob(filepath.Join(sampleDir, "*.jdx"))
 	if err != nil || len(files) == 0 {
 		f.Fatalf("no seed files in %s: %v", sampleDir, err)
 	}
+	// The corrupted-file corpus (testdata/README.md, section corrupt).
+	corrupt, _ := filepath.Glob(filepath.Join(sampleDir, "..", "corrupt", "*.jdx"))
+	files = append(files, corrupt...)
 	for _, name := range files {
 		b, err := os.ReadFile(name)
 		if err != nil {
@@ -44,7 +51,9 @@ func FuzzRead(f *testing.F) {
 		case 3:
 			r.MaxPoints, r.MaxBytes = 64, 4096
 		}
-		s, err := r.Read()
+		var s *specio.Spectrum
+		var err error
+		fzBound(t, fzDeadline, fzMaxAlloc(len(data)), "Read", func() { s, err = r.Read() })
 		if err != nil {
 			var pe *specio.ParseError
 			if !errors.As(err, &pe) {
@@ -79,4 +88,39 @@ func FuzzRead(f *testing.F) {
 			t.Fatalf("Kind %v", s.Kind)
 		}
 	})
+}
+
+// Bounds of one reader fuzz input: a read is linear in the input (a few
+// milliseconds for the largest the fuzzer makes), so a second means a loop
+// that does not end; the allocation limit is generous against the input's
+// size (the text, its lines and cells, the points).
+const fzDeadline = 10 * time.Second
+
+func fzMaxAlloc(n int) uint64 { return 64<<20 + 512*uint64(n) }
+
+// fzBound runs f and fails the test if it does not return within d or
+// allocates more than maxAlloc bytes on the heap (runtime/metrics
+// /gc/heap/allocs:bytes, cheap enough to read for every input). A panic
+// in f crashes the fuzz worker, which the fuzzer reports with the input.
+func fzBound(t *testing.T, d time.Duration, maxAlloc uint64, what string, f func()) {
+	t.Helper()
+	sample := []metrics.Sample{{Name: "/gc/heap/allocs:bytes"}}
+	metrics.Read(sample)
+	before := sample[0].Value.Uint64()
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		f()
+	}()
+	timer := time.NewTimer(d)
+	defer timer.Stop()
+	select {
+	case <-done:
+	case <-timer.C:
+		t.Fatalf("%s did not return within %v", what, d)
+	}
+	metrics.Read(sample)
+	if a := sample[0].Value.Uint64() - before; a > maxAlloc {
+		t.Fatalf("%s allocated %d bytes (limit %d)", what, a, maxAlloc)
+	}
 }

@@ -208,6 +208,10 @@ func (p *parser) spectrum() (*specio.Spectrum, error) {
 		}
 		e[i] = ev
 	}
+	if i := specio.ImplausibleEnergy(e); i >= 0 {
+		return nil, p.errf(lines[i], 0, specio.ErrUnit, "x = %s read as %s gives a photon energy of %.4g eV, outside %g–%g eV (far infrared to vacuum ultraviolet): ##XUNITS= (or --x-unit) is wrong for these values",
+			fmtG(x[i]), xu, e[i], float64(specio.MinPhotonEV), float64(specio.MaxPhotonEV))
+	}
 	if n > 1 && e[0] > e[n-1] {
 		slices.Reverse(e)
 		slices.Reverse(y)
@@ -397,6 +401,13 @@ func (p *parser) yKind(k specio.YKind, y []float64, lines []int) (specio.YKind, 
 		p.note("y: %s (%s)", yQuantity(k), from)
 	}
 	switch k {
+	case specio.Absorbance:
+		switch i, med, why := specio.ImplausibleAbsorbance(y); why {
+		case "negative":
+			return 0, p.errf(lines[i], 0, specio.ErrRange, "every absorbance value is negative (the largest, %s, is here): T > 1 at every point; were the sample and reference beams swapped, or the baseline taken on the sample?", fmtG(y[i]))
+		case "median":
+			return 0, p.errf(lines[i], 0, specio.ErrRange, "absorbance up to %s with a median of %s is beyond any spectrophotometer (at most about 6–8): is it %%T? pass --y-kind T%%", fmtG(y[i]), fmtG(med))
+		}
 	case specio.Transmittance:
 		switch {
 		case ymax > looksPercent:

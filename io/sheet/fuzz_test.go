@@ -6,7 +6,9 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"runtime/metrics"
 	"testing"
+	"time"
 
 	"bandedge/io/specio"
 )
@@ -42,11 +44,14 @@ func checkErr(t *testing.T, err error, file string) {
 // at least one row, every row with a file name, a line inside the input,
 // distinct base names that Lookup finds again, positive finite thickness
 // and index, non-negative finite uncertainties, temperatures above 0 K,
-// finite positions, and one Extra cell per extra column. Never a panic.
+// finite positions, and one Extra cell per extra column. Never a panic;
+// a return within fzDeadline and fzMaxAlloc(len(data)).
 func FuzzReadSamples(f *testing.F) {
 	addFiles(f, "*.csv")
 	f.Fuzz(func(t *testing.T, data []byte) {
-		s, err := ReadSamples(bytes.NewReader(data), "fuzz.csv")
+		var s *Samples
+		var err error
+		fzBound(t, fzDeadline, fzMaxAlloc(len(data)), "ReadSamples", func() { s, err = ReadSamples(bytes.NewReader(data), "fuzz.csv") })
 		if err != nil {
 			if s != nil {
 				t.Fatal("sheet and error together")
@@ -84,12 +89,15 @@ func FuzzReadSamples(f *testing.F) {
 // known guard, at least one limit, every limit on a known quantity, once,
 // with Lo ≤ Hi, no NaN bound, at least one finite bound, and a line inside
 // the input; Judge passes each finite bound with U = 0 (closed limits) and
-// gives a verdict for any value. Never a panic.
+// gives a verdict for any value. Never a panic; a return within
+// fzDeadline and fzMaxAlloc(len(data)).
 func FuzzReadSpec(f *testing.F) {
 	addFiles(f, "*.spec")
 	f.Add([]byte(fullSpec))
 	f.Fuzz(func(t *testing.T, data []byte) {
-		sp, err := ReadSpec(bytes.NewReader(data), "fuzz.spec")
+		var sp *Spec
+		var err error
+		fzBound(t, fzDeadline, fzMaxAlloc(len(data)), "ReadSpec", func() { sp, err = ReadSpec(bytes.NewReader(data), "fuzz.spec") })
 		if err != nil {
 			if sp != nil {
 				t.Fatal("spec and error together")
@@ -121,4 +129,39 @@ func FuzzReadSpec(f *testing.F) {
 			}
 		}
 	})
+}
+
+// Bounds of one reader fuzz input: a read is linear in the input (a few
+// milliseconds for the largest the fuzzer makes), so a second means a loop
+// that does not end; the allocation limit is generous against the input's
+// size (the text, its lines and cells, the points).
+const fzDeadline = 10 * time.Second
+
+func fzMaxAlloc(n int) uint64 { return 64<<20 + 512*uint64(n) }
+
+// fzBound runs f and fails the test if it does not return within d or
+// allocates more than maxAlloc bytes on the heap (runtime/metrics
+// /gc/heap/allocs:bytes, cheap enough to read for every input). A panic
+// in f crashes the fuzz worker, which the fuzzer reports with the input.
+func fzBound(t *testing.T, d time.Duration, maxAlloc uint64, what string, f func()) {
+	t.Helper()
+	sample := []metrics.Sample{{Name: "/gc/heap/allocs:bytes"}}
+	metrics.Read(sample)
+	before := sample[0].Value.Uint64()
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		f()
+	}()
+	timer := time.NewTimer(d)
+	defer timer.Stop()
+	select {
+	case <-done:
+	case <-timer.C:
+		t.Fatalf("%s did not return within %v", what, d)
+	}
+	metrics.Read(sample)
+	if a := sample[0].Value.Uint64() - before; a > maxAlloc {
+		t.Fatalf("%s allocated %d bytes (limit %d)", what, a, maxAlloc)
+	}
 }

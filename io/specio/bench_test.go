@@ -73,7 +73,11 @@ func TestReadAdversarial(t *testing.T) {
 	}
 	for _, tc := range adversarial {
 		t.Run(tc.name, func(t *testing.T) {
-			s, err := NewReader(strings.NewReader(tc.in()), "big.csv").Read()
+			// Long lines are allowed here, so that the paths behind the
+			// line limit are exercised too.
+			r := NewReader(strings.NewReader(tc.in()), "big.csv")
+			r.MaxLineBytes = DefaultMaxBytes
+			s, err := r.Read()
 			if tc.err == nil {
 				if err != nil {
 					t.Fatal(err)
@@ -96,7 +100,9 @@ func BenchmarkReadAdversarial(b *testing.B) {
 			b.SetBytes(int64(len(in)))
 			b.ReportAllocs()
 			for b.Loop() {
-				NewReader(strings.NewReader(in), "big.csv").Read()
+				r := NewReader(strings.NewReader(in), "big.csv")
+				r.MaxLineBytes = DefaultMaxBytes
+				r.Read()
 			}
 		})
 	}

@@ -9,7 +9,9 @@ import (
 
 // decode turns the raw bytes of an export into UTF-8 text. It strips a UTF-8
 // byte-order mark, decodes UTF-16 LE or BE marked by a byte-order mark, and
-// rejects NUL bytes and invalid UTF-8. A file that uses bare CR line endings
+// rejects NUL bytes. Input that is not valid UTF-8 but reads as
+// Windows-1252 (Latin-1) text is decoded as such (decodeWindows1252), else
+// it is an ErrEncoding. A file that uses bare CR line endings
 // (no LF at all) has them turned into LF. The note says what was decoded
 // ("" for plain UTF-8).
 //
@@ -40,6 +42,11 @@ func decode(b []byte, name string) (text, note string, err error) {
 		}
 		return "", "", &ParseError{File: name, Line: line, Column: col, Err: ErrEncoding, Detail: detail}
 	}
+	if !utf8.ValidString(text) && note == "" {
+		if t, ok := decodeWindows1252(b); ok {
+			text, note = t, "not UTF-8: read as Windows-1252 (Latin-1), the encoding of older Windows instrument software"
+		}
+	}
 	if !utf8.ValidString(text) {
 		i := 0
 		for i < len(text) {
@@ -59,12 +66,65 @@ func decode(b []byte, name string) (text, note string, err error) {
 	return text, note, nil
 }
 
+// windows1252 maps the bytes 0x80–0x9F of Windows-1252 to Unicode (0 where
+// the code page leaves them undefined); the bytes 0xA0–0xFF are Latin-1,
+// equal to their code points. From the Unicode Consortium's mapping file
+// MAPPINGS/VENDORS/MICSFT/WINDOWS/CP1252.TXT. Written out here because the
+// standard library has no single-byte code pages and 32 entries do not
+// justify golang.org/x/text.
+var windows1252 = [32]rune{
+	0x20AC, 0, 0x201A, 0x0192, 0x201E, 0x2026, 0x2020, 0x2021, 0x02C6, 0x2030, 0x0160, 0x2039, 0x0152, 0, 0x017D, 0,
+	0, 0x2018, 0x2019, 0x201C, 0x201D, 0x2022, 0x2013, 0x2014, 0x02DC, 0x2122, 0x0161, 0x203A, 0x0153, 0, 0x017E, 0x0178,
+}
+
+// decodeWindows1252 decodes b (not valid UTF-8) as Windows-1252 text, the
+// superset of Latin-1 that Windows instrument software writes ("µm" as the
+// byte 0xB5). It refuses, so that binary data is still reported as such,
+// input with control bytes other than tab, line breaks, form feed and the
+// DOS end-of-file mark 0x1A, with a byte the code page leaves undefined, or
+// with more than a quarter of its bytes above 0x7F.
+func decodeWindows1252(b []byte) (string, bool) {
+	high := 0
+	for _, c := range b {
+		switch {
+		case c < 0x20 && c != '\t' && c != '\n' && c != '\r' && c != '\f' && c != 0x1a, c == 0x7f:
+			return "", false
+		case c >= 0x80 && c < 0xa0 && windows1252[c-0x80] == 0:
+			return "", false
+		case c >= 0x80:
+			high++
+		}
+	}
+	if 4*high > len(b) {
+		return "", false
+	}
+	var sb strings.Builder
+	sb.Grow(len(b) + high)
+	for _, c := range b {
+		switch {
+		case c < 0x80:
+			sb.WriteByte(c)
+		case c < 0xa0:
+			sb.WriteRune(windows1252[c-0x80])
+		default:
+			sb.WriteRune(rune(c))
+		}
+	}
+	return sb.String(), true
+}
+
 // decodeUTF16 decodes UTF-16 code units (after the byte-order mark) into
 // UTF-8. An odd byte count or an unpaired surrogate is an ErrEncoding.
 func decodeUTF16(b []byte, bigEndian bool, name string) (string, error) {
 	if len(b)%2 != 0 {
-		return "", &ParseError{File: name, Err: ErrEncoding,
-			Detail: "UTF-16 input with an odd number of bytes (truncated file?)"}
+		// Point at the end of the text that is there.
+		text, err := decodeUTF16(b[:len(b)-1], bigEndian, name)
+		line, col := 0, 0
+		if err == nil {
+			line, col = lineCol(text, len(text))
+		}
+		return "", &ParseError{File: name, Line: line, Column: col, Err: ErrEncoding,
+			Detail: "UTF-16 input with an odd number of bytes: the file is truncated here"}
 	}
 	unit := func(i int) rune {
 		if bigEndian {

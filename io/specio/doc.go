@@ -24,13 +24,21 @@
 // # Input
 //
 // Text in UTF-8 (with or without a byte-order mark) or UTF-16 LE/BE with a
-// byte-order mark; LF, CRLF or CR line endings. Cells are separated by
+// byte-order mark; input that is not UTF-8 but is plain Windows-1252
+// (Latin-1) text, as older Windows instrument software writes it ("µm" as
+// the byte 0xB5), is read as such and Notes says so; LF, CRLF or CR line
+// endings. Cells are separated by
 // commas, semicolons, tabs or runs of blanks; with semicolons, tabs or
 // blanks the decimal separator may be a comma ("0,93"). Before the header
 // may come any number of preamble lines; those that look like "key: value",
 // "key=value" or "key<separator>value" go into Spectrum.Meta, as do
 // "key: value" comment lines. Comment lines (Reader.Comment, '#' by default)
-// and blank lines are skipped anywhere.
+// and blank lines are skipped anywhere. After the data may come a trailing
+// block (statistics, a "scan end" stamp): content lines after the last
+// numeric row, none of which starts like a data row (a number, a sign or a
+// decimal mark before a digit); they go into Meta and Notes says which lines
+// they were. A damaged last row (a number and too few cells) is never taken
+// for a trailer.
 //
 // # Detection
 //
@@ -74,12 +82,18 @@
 // a fraction above 1.5 is an error that says it looks like percent, and a
 // header saying percent over values all ≤ 1.5 is an error that says it looks
 // like a fraction (with YKind set to TransmittancePercent it is read as
-// percent and noted). x must be positive and strictly ascending or
+// percent and noted). Absorbance that is negative at every point (T > 1
+// everywhere: swapped beams) or has a median above 10 (%T under an
+// absorbance header) is an ErrRange. An x unit, from the header or the
+// XUnit option, that puts a photon energy outside 0.005–25 eV (far infrared
+// to vacuum ultraviolet) is an ErrUnit naming the units the values fit. A
+// comma-separated file whose rows have exactly twice the cells its header
+// names (a decimal comma in a comma-separated file) is an ErrSyntax. x must be positive and strictly ascending or
 // descending; a repeated x names both lines. Every data error is a
 // *ParseError with a 1-based line and column wrapping a sentinel error
 // (ErrSyntax, ErrRange, ErrNotMonotonic, ErrNoData, ErrUnit, ErrAmbiguous,
-// ErrTooLarge, ErrEncoding, ErrOption). MaxBytes, MaxLines and MaxPoints
-// bound the memory any input can take; a data line with more than 4096
+// ErrTooLarge, ErrEncoding, ErrOption). MaxBytes, MaxLines, MaxPoints and
+// MaxLineBytes bound the memory any input can take; a data line with more than 4096
 // cells is an ErrTooLarge, and Meta keeps at most 1000 keys and 100 values
 // per key.
 package specio

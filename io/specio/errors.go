@@ -25,8 +25,8 @@ var (
 	// ErrAmbiguous: more than one reading of the columns fits; an option
 	// (flag) must decide.
 	ErrAmbiguous = errors.New("specio: ambiguous columns")
-	// ErrTooLarge: the input exceeds MaxBytes, MaxLines or MaxPoints, or a
-	// data line has more than 4096 cells.
+	// ErrTooLarge: the input exceeds MaxBytes, MaxLines, MaxPoints or
+	// MaxLineBytes, or a data line has more than 4096 cells.
 	ErrTooLarge = errors.New("specio: input too large")
 	// ErrEncoding: the input is not text (NUL bytes, invalid UTF-8, broken
 	// UTF-16).

@@ -65,6 +65,9 @@ func (p *parser) finish(d *data) (*Spectrum, error) {
 		}
 		e[i] = v
 	}
+	if err := p.checkEnergies(d, e, unit); err != nil {
+		return nil, err
+	}
 	if n > 1 && e[0] > e[n-1] {
 		slices.Reverse(e)
 		slices.Reverse(d.y)
@@ -84,6 +87,57 @@ func (p *parser) finish(d *data) (*Spectrum, error) {
 	s.E, s.Y, s.R, s.Lines = e, d.y, d.r, d.lines
 	s.Notes = p.notes
 	return s, nil
+}
+
+// checkEnergies rejects an x unit that puts the photon energies outside
+// [MinPhotonEV, MaxPhotonEV], naming the units the values do fit.
+func (p *parser) checkEnergies(d *data, e []float64, unit XUnit) error {
+	bad := ImplausibleEnergy(e)
+	if bad < 0 {
+		return nil
+	}
+	xlo, xhi := d.x[0], d.x[len(d.x)-1]
+	if xlo > xhi {
+		xlo, xhi = xhi, xlo
+	}
+	var fits []string
+	for _, r := range plausibleX {
+		if r.unit != unit && xlo >= r.lo && xhi <= r.hi {
+			fits = append(fits, r.unit.String())
+		}
+	}
+	hint := "pass --x-unit (nm, um, ev, cm-1)"
+	if len(fits) > 0 {
+		hint = "the values fit " + strings.Join(fits, " or ") + "; pass --x-unit " + fits[0]
+	}
+	src := "the header"
+	if p.r.XUnit != XAuto {
+		src = "--x-unit"
+	}
+	return p.errf(d.lines[bad], p.xCol(), ErrUnit, "x = %s read as %s (from %s) gives a photon energy of %.4g eV, outside %g–%g eV (far infrared to vacuum ultraviolet): the unit is wrong; %s",
+		fmtG(d.x[bad]), unit.quantity(), src, e[bad], float64(MinPhotonEV), float64(MaxPhotonEV), hint)
+}
+
+// xCol is the byte column of the x header cell, 0 if not known.
+func (p *parser) xCol() int {
+	if p.header != nil && p.xi < len(p.cols) {
+		return p.cols[p.xi].col
+	}
+	return 0
+}
+
+// checkAbsorbance rejects an absorbance column whose values cannot be
+// absorbance (ImplausibleAbsorbance).
+func (p *parser) checkAbsorbance(d *data) error {
+	st := d.ys
+	_, med, why := ImplausibleAbsorbance(d.y)
+	switch why {
+	case "negative":
+		return p.errf(st.maxLine, st.maxCol, ErrRange, "every absorbance value is negative (the largest, %s, is here): T > 1 at every point; were the sample and reference beams swapped, or the baseline taken on the sample?", fmtG(st.max))
+	case "median":
+		return p.errf(st.maxLine, st.maxCol, ErrRange, "absorbance up to %s with a median of %s is beyond any spectrophotometer (at most about 6–8): is this column %%T? pass --y-kind T%%", fmtG(st.max), fmtG(med))
+	}
+	return nil
 }
 
 // xUnit decides the unit of x: option, header unit, header quantity with
@@ -190,6 +244,10 @@ func (p *parser) yKind(d *data) (YKind, error) {
 		p.note("y %s: %s (from the %s)", where, kind.quantity(), src)
 	}
 	switch kind {
+	case Absorbance:
+		if err := p.checkAbsorbance(d); err != nil {
+			return 0, err
+		}
 	case Transmittance:
 		switch {
 		case st.max > looksPercent:

@@ -5,7 +5,9 @@ import (
 	"errors"
 	"os"
 	"path/filepath"
+	"runtime/metrics"
 	"testing"
+	"time"
 )
 
 // FuzzRead asserts the reader's contract on any input: Read returns a
@@ -13,11 +15,19 @@ import (
 // E strictly ascending and E, Y, Lines (and R) of one length. Never a
 // panic. cfg selects one of several valid option sets, so that the paths
 // behind the options are fuzzed too.
+// Every read returns within fzDeadline and allocates at most
+// fzMaxAlloc(len(data)) bytes.
 func FuzzRead(f *testing.F) {
 	files, err := filepath.Glob(filepath.Join(sampleDir, "*"))
 	if err != nil || len(files) == 0 {
 		f.Fatalf("no seed files in %s: %v", sampleDir, err)
 	}
+	// The corrupted-file corpus (testdata/README.md, section corrupt).
+	corrupt, err := filepath.Glob(filepath.Join(sampleDir, "..", "corrupt", "*.[ct][sx][vt]"))
+	if err != nil || len(corrupt) < 20 {
+		f.Fatalf("corrupt corpus: %d files, %v", len(corrupt), err)
+	}
+	files = append(files, corrupt...)
 	for _, name := range files {
 		b, err := os.ReadFile(name)
 		if err != nil {
@@ -52,7 +62,9 @@ func FuzzRead(f *testing.F) {
 		case 3:
 			r.MaxLines, r.MaxPoints = 50, 20
 		}
-		s, err := r.Read()
+		var s *Spectrum
+		var err error
+		fzBound(t, fzDeadline, fzMaxAlloc(len(data)), "Read", func() { s, err = r.Read() })
 		if err != nil {
 			var pe *ParseError
 			if !errors.As(err, &pe) {
@@ -68,4 +80,39 @@ func FuzzRead(f *testing.F) {
 		}
 		checkProperties(t, s)
 	})
+}
+
+// Bounds of one reader fuzz input: a read is linear in the input (a few
+// milliseconds for the largest the fuzzer makes), so a second means a loop
+// that does not end; the allocation limit is generous against the input's
+// size (the text, its lines and cells, the points).
+const fzDeadline = 10 * time.Second
+
+func fzMaxAlloc(n int) uint64 { return 64<<20 + 512*uint64(n) }
+
+// fzBound runs f and fails the test if it does not return within d or
+// allocates more than maxAlloc bytes on the heap (runtime/metrics
+// /gc/heap/allocs:bytes, cheap enough to read for every input). A panic
+// in f crashes the fuzz worker, which the fuzzer reports with the input.
+func fzBound(t *testing.T, d time.Duration, maxAlloc uint64, what string, f func()) {
+	t.Helper()
+	sample := []metrics.Sample{{Name: "/gc/heap/allocs:bytes"}}
+	metrics.Read(sample)
+	before := sample[0].Value.Uint64()
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		f()
+	}()
+	timer := time.NewTimer(d)
+	defer timer.Stop()
+	select {
+	case <-done:
+	case <-timer.C:
+		t.Fatalf("%s did not return within %v", what, d)
+	}
+	metrics.Read(sample)
+	if a := sample[0].Value.Uint64() - before; a > maxAlloc {
+		t.Fatalf("%s allocated %d bytes (limit %d)", what, a, maxAlloc)
+	}
 }

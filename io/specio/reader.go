@@ -17,6 +17,10 @@ const (
 	DefaultMaxBytes  = 64 << 20  // 64 MiB
 	DefaultMaxLines  = 1_000_000 // lines of text
 	DefaultMaxPoints = 1_000_000 // data points
+	// DefaultMaxLineBytes bounds one line: 4096 cells of 30 characters
+	// are 120 KiB, so a longer line is not a spectrum row or a preamble a
+	// person wrote (common practice; no standard sets it).
+	DefaultMaxLineBytes = 1 << 20 // 1 MiB
 )
 
 // Plausible x ranges per unit, used only when the header names no unit.
@@ -84,6 +88,10 @@ type Reader struct {
 	// DefaultMaxPoints.
 	MaxPoints int
 
+	// MaxLineBytes is the longest line accepted, in bytes of UTF-8 text.
+	// Zero means DefaultMaxLineBytes.
+	MaxLineBytes int
+
 	r    io.Reader
 	name string
 	done bool
@@ -128,12 +136,14 @@ type parser struct {
 	maxBytes  int64
 	maxLines  int
 	maxPoints int
+	maxLine   int
 
 	text  string
 	lines []string // without '\n'; may end in '\r'
 	mode  mode
 
 	dataStart int     // index in lines of the first data row
+	dataEnd   int     // index in lines just past the last data row (a trailing block starts there)
 	ncols     int     // cells in the first data row (trailing empties dropped)
 	header    []field // header cells, nil if none
 	headerLn  int     // 1-based header line (lower line of a two-line header), 0 if none
@@ -196,10 +206,13 @@ func (p *parser) options() error {
 			return bad("%s %q: column indices start at 1", o.name, o.v)
 		}
 	}
-	if r.MaxBytes < 0 || r.MaxLines < 0 || r.MaxPoints < 0 {
-		return bad("negative limit (MaxBytes %d, MaxLines %d, MaxPoints %d)", r.MaxBytes, r.MaxLines, r.MaxPoints)
+	if r.MaxBytes < 0 || r.MaxLines < 0 || r.MaxPoints < 0 || r.MaxLineBytes < 0 {
+		return bad("negative limit (MaxBytes %d, MaxLines %d, MaxPoints %d, MaxLineBytes %d)", r.MaxBytes, r.MaxLines, r.MaxPoints, r.MaxLineBytes)
 	}
-	p.maxBytes, p.maxLines, p.maxPoints = r.MaxBytes, r.MaxLines, r.MaxPoints
+	p.maxBytes, p.maxLines, p.maxPoints, p.maxLine = r.MaxBytes, r.MaxLines, r.MaxPoints, r.MaxLineBytes
+	if p.maxLine == 0 {
+		p.maxLine = DefaultMaxLineBytes
+	}
 	if p.maxBytes == 0 {
 		p.maxBytes = DefaultMaxBytes
 	}
@@ -225,6 +238,12 @@ func (p *parser) parse(raw []byte) (*Spectrum, error) {
 	}
 	p.text = text
 	p.lines = strings.Split(text, "\n")
+	for i, l := range p.lines {
+		if len(l) > p.maxLine {
+			return nil, p.errf(i+1, 0, ErrTooLarge, "line of %d bytes, longer than %d (MaxLineBytes): not a spectrum export", len(l), p.maxLine)
+		}
+	}
+	p.dataEnd = len(p.lines)
 	p.meta = map[string]string{}
 	if err := p.layout(); err != nil {
 		return nil, err
@@ -325,7 +344,85 @@ func (p *parser) layout() error {
 	p.dataStart = start
 	p.headerTop = start
 	p.findHeader()
-	return nil
+	p.findTrailer()
+	return p.checkCellCount()
+}
+
+// findTrailer ends the data before a trailing block: the content lines
+// after the last numeric row, if none of them starts like a data row
+// (instrument software writes statistics or a "scan end" stamp there). A
+// damaged row at the end (a number, then too few cells) is not a trailer:
+// it stays data, so that its error is reported where it is.
+func (p *parser) findTrailer() {
+	last, first := -1, -1
+	for i := len(p.lines) - 1; i >= p.dataStart; i-- {
+		// Rows of empty cells (",,,") and the DOS end-of-file mark are
+		// skipped by the data reader too.
+		if !p.content(i) || strings.Trim(p.lines[i], " \t\r\x1a,;") == "" {
+			continue
+		}
+		fs := trimTrailingEmpty(p.split(p.lines[i]))
+		if numericRow(fs, p.mode.decimalComma) {
+			last = i
+			break
+		}
+		if startsLikeData(p.lines[i], fs, p.mode.decimalComma) {
+			return
+		}
+		first = i
+	}
+	if last < 0 || first < 0 {
+		return
+	}
+	p.dataEnd = last + 1
+	end := len(p.lines)
+	for end > first && isBlank(p.lines[end-1]) {
+		end--
+	}
+	head := strings.TrimSpace(strings.TrimRight(p.lines[first], "\r"))
+	if utf8.RuneCountInString(head) > 40 {
+		head = string([]rune(head)[:40]) + "…"
+	}
+	p.note("lines %d–%d after the data (from %q) are a trailing block, not data: kept as metadata", first+1, end, head)
+}
+
+// startsLikeData reports whether a line that is not a numeric row still
+// looks like a data row: its first cell is a number, NaN or empty, or the
+// line starts with a digit (or a sign or decimal mark and a digit), as a
+// row with another separator does.
+func startsLikeData(line string, fs []field, dc bool) bool {
+	if len(fs) == 0 || fs[0].s == "" || scanNumber(fs[0].s, dc) != numNo {
+		return true
+	}
+	t := strings.TrimLeft(line, " \t\"")
+	if t == "" {
+		return true
+	}
+	if t[0] >= '0' && t[0] <= '9' {
+		return true
+	}
+	return len(t) > 1 && strings.IndexByte("+-.,", t[0]) >= 0 && t[1] >= '0' && t[1] <= '9'
+}
+
+// checkCellCount catches a decimal comma in a comma-separated file
+// ("1000,0,51,670"): the rows then have exactly twice as many cells as
+// the header names, and the columns would be read as whole and fractional
+// parts.
+func (p *parser) checkCellCount() error {
+	if p.mode.sep != ',' || p.header == nil {
+		return nil
+	}
+	k := 0
+	for _, f := range p.header {
+		if f.s != "" {
+			k++
+		}
+	}
+	if k < 2 || p.ncols != 2*k || len(p.header) > k {
+		return nil
+	}
+	row := strings.TrimSpace(strings.TrimRight(p.lines[p.dataStart], "\r"))
+	return p.errf(p.dataStart+1, 0, ErrSyntax, "the header names %d columns but the rows have %d cells (%q): is the decimal separator a comma in a comma-separated file? Export with ';' or tabs as the separator, or '.' as the decimal mark", k, p.ncols, row)
 }
 
 // nextContent returns the index of the first content line after line i,
@@ -400,7 +497,7 @@ func (p *parser) noDataError() error {
 	}
 	if last < 0 {
 		if isBlank(p.text) {
-			return p.errf(0, 0, ErrNoData, "empty input")
+			return p.errf(0, 0, ErrNoData, "empty input: no text at all (did the export or the copy fail?)")
 		}
 		return p.errf(0, 0, ErrNoData, "no data: only comments and blank lines")
 	}
@@ -563,6 +660,27 @@ func (p *parser) readMeta() {
 			continue
 		}
 		if comment {
+			line = line[strings.IndexRune(line, p.comment)+utf8.RuneLen(p.comment):]
+		}
+		k, v, ok := keyValue(line, p.mode.sep)
+		if !ok {
+			continue
+		}
+		if _, seen := values[k]; !seen && len(order) >= maxMetaKeys {
+			continue
+		} else if !seen {
+			order = append(order, k)
+		}
+		if len(values[k]) < maxMetaValues {
+			values[k] = append(values[k], v)
+		}
+	}
+	for i := p.dataEnd; i < len(p.lines); i++ {
+		line := strings.TrimRight(p.lines[i], "\r")
+		if isBlank(line) {
+			continue
+		}
+		if p.isComment(line) {
 			line = line[strings.IndexRune(line, p.comment)+utf8.RuneLen(p.comment):]
 		}
 		k, v, ok := keyValue(line, p.mode.sep)
@@ -882,7 +1000,7 @@ type data struct {
 // readData parses the rows from dataStart on.
 func (p *parser) readData() (*data, error) {
 	d := &data{}
-	capHint := min(len(p.lines)-p.dataStart, p.maxPoints)
+	capHint := min(p.dataEnd-p.dataStart, p.maxPoints)
 	d.x = make([]float64, 0, capHint)
 	d.y = make([]float64, 0, capHint)
 	d.lines = make([]int, 0, capHint)
@@ -893,7 +1011,7 @@ func (p *parser) readData() (*data, error) {
 	if p.mode.sep == ' ' {
 		var rec []string
 		var cols []int
-		for i := p.dataStart; i < len(p.lines); i++ {
+		for i := p.dataStart; i < p.dataEnd; i++ {
 			line := p.lines[i]
 			if isBlank(line) || p.isComment(line) {
 				continue
@@ -915,13 +1033,18 @@ func (p *parser) readData() (*data, error) {
 	for i := 0; i < p.dataStart; i++ {
 		off += len(p.lines[i]) + 1
 	}
+	end := off
+	for i := p.dataStart; i < p.dataEnd; i++ {
+		end += len(p.lines[i]) + 1
+	}
+	end = min(end, len(p.text))
 	sep := string(p.mode.sep)
-	for i := p.dataStart; i < len(p.lines); i++ {
+	for i := p.dataStart; i < p.dataEnd; i++ {
 		if strings.Count(p.lines[i], sep) >= maxCells {
 			return nil, p.errf(i+1, 0, ErrTooLarge, "more than %d cells on one line", maxCells)
 		}
 	}
-	cr := csv.NewReader(strings.NewReader(p.text[off:]))
+	cr := csv.NewReader(strings.NewReader(p.text[off:end]))
 	cr.Comma = p.mode.sep
 	cr.Comment = p.comment
 	cr.FieldsPerRecord = -1
@@ -1124,8 +1247,38 @@ func (rp *rowParser) cell(line int, rec []string, cols []int, i int, what string
 		hint = " (is the decimal separator a comma?)"
 	case dc && strings.IndexByte(s, '.') >= 0 && scanNumber(s, false) == numOK:
 		hint = " (the file uses a decimal comma elsewhere)"
+	default:
+		if c, ok := otherSeparator(s, p.mode.sep); ok {
+			hint = fmt.Sprintf(" (this line is separated by %q, the file by %q: two exports pasted together?)", c, p.mode.sep)
+		}
 	}
 	return 0, p.errf(line, cols[i], ErrSyntax, "%q is not a number%s", s, hint)
+}
+
+// otherSeparator reports whether s is a row cut by another separator than
+// sep: two or more numbers separated by ';', ',' or a tab.
+func otherSeparator(s string, sep rune) (rune, bool) {
+	for _, c := range []rune{';', '\t', ','} {
+		if c == sep || !strings.ContainsRune(s, c) {
+			continue
+		}
+		parts := strings.Split(s, string(c))
+		if len(parts) < 2 {
+			continue
+		}
+		ok := true
+		for _, q := range parts {
+			q = strings.TrimSpace(q)
+			if scanNumber(q, false) != numOK && scanNumber(q, true) != numOK {
+				ok = false
+				break
+			}
+		}
+		if ok {
+			return c, true
+		}
+	}
+	return 0, false
 }
 
 func fmtG(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }

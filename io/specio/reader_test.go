@@ -456,10 +456,65 @@ var readTests = []readTest{
 	{Name: "Words", Input: "hello world\nfoo bar\n", Error: ErrNoData},
 	{Name: "NUL", Input: "Wavelength (nm),%T\n500,5\x000\n", Error: ErrEncoding, Line: 2, Column: 6},
 	{Name: "BinaryGarbage", Input: "\x89PNG\r\n\x1a\n\x00\x00\x01", Error: ErrEncoding, Line: 3, Column: 1},
-	{Name: "InvalidUTF8", Input: "Wavelength (\xb5m),A\n0.5,0.1\n", Error: ErrEncoding, Line: 1, Column: 13},
-	{Name: "UTF16/OddLength", Raw: []byte{0xFF, 0xFE, 'W', 0, 'a'}, Error: ErrEncoding},
+	// Not UTF-8 and not Windows-1252 text either: a control byte (0x01)
+	// and an undefined code point (0x81) mark binary data.
+	{Name: "InvalidUTF8/ControlByte", Input: "Wavelength (\xb5m),A\x01\n0.5,0.1\n", Error: ErrEncoding, Line: 1, Column: 13},
+	{Name: "InvalidUTF8/Undefined1252", Input: "Wavelength (\x81m),A\n0.5,0.1\n", Error: ErrEncoding, Line: 1, Column: 13},
+	{Name: "UTF16/OddLength", Raw: []byte{0xFF, 0xFE, 'W', 0, 'a'}, Error: ErrEncoding, Line: 1, Column: 2,
+		Detail: []string{"odd number of bytes", "truncated"}},
 	{Name: "UTF16/UnpairedSurrogate", Raw: []byte{0xFF, 0xFE, 'A', 0, 0x00, 0xD8, 'B', 0}, Error: ErrEncoding, Line: 1, Column: 2},
 	{Name: "UTF16/NoBOM", Raw: []byte("W\x00a\x00v\x00e\x00"), Error: ErrEncoding, Line: 1, Column: 2, Detail: []string{"UTF-16 without a byte-order mark"}},
+
+	// Windows-1252 (Latin-1): "µm" as the byte 0xB5, "ä" as 0xE4, and
+	// the en dash 0x96 from the code page's 0x80–0x9F block (Unicode's
+	// CP1252.TXT maps it to U+2013).
+	{
+		Name:  "Windows1252/Micro",
+		Input: "Ger\xe4t;KM \x96 2\nWellenl\xe4nge (\xb5m);T (%)\n0,85;50,5\n0,90;60,5\n",
+		X:     []float64{0.90, 0.85}, Unit: Micrometre, Y: []float64{0.605, 0.505},
+		Kind: Transmittance, SrcKind: TransmittancePercent, Lines: []int{4, 3},
+		XHeader: "Wellenlänge (µm)", Meta: map[string]string{"Gerät": "KM – 2"},
+		Notes: []string{"Windows-1252"},
+	},
+	// A trailing block after the data, as instrument software writes it:
+	// read as metadata, not as points.
+	{
+		Name:  "Trailer/Statistics",
+		Input: "Wavelength (nm),%T\n500,50\n600,60\n\n[Statistics]\nAverage,55\nScan end: 10:42\n",
+		X:     []float64{600, 500}, Unit: Nanometre, Y: []float64{0.6, 0.5},
+		Kind: Transmittance, SrcKind: TransmittancePercent, Lines: []int{3, 2},
+		Meta:  map[string]string{"Average": "55", "Scan end": "10:42"},
+		Notes: []string{"lines 5–7 after the data", "trailing block"},
+	},
+	{
+		Name:  "Trailer/Whitespace",
+		Input: "nm Abs\n500 0.5\n600 0.4\nEnd of data\n",
+		X:     []float64{600, 500}, Unit: Nanometre, Y: []float64{0.4, 0.5},
+		Kind: Absorbance, SrcKind: Absorbance, Lines: []int{3, 2},
+		Notes: []string{"line"},
+	},
+	// Not a trailer: a damaged last row (a number, then nothing) is
+	// reported where it is, even with text after it.
+	{Name: "Trailer/DamagedRowBefore", Input: "Wavelength (nm),%T\n500,50\n600,60\n700,\nAverage,55\n", Error: ErrSyntax, Line: 4, Column: 5},
+	// Not a trailer: rows with another separator after the data.
+	{Name: "Trailer/OtherSeparator", Input: "Wavelength (nm),%T\n500,50\n600,60\n650,65\n680,68\n700;70\n800;80\n", Error: ErrSyntax, Line: 6, Column: 1,
+		Detail: []string{`separated by ';'`}},
+	// Not a trailer: text in the middle of the data.
+	{Name: "Trailer/TextInside", Input: "Wavelength (nm),%T\n500,50\n550,55\nlamp change\n600,60\n650,65\n", Error: ErrSyntax, Line: 4, Column: 1},
+
+	// Limits.
+	{Name: "MaxLineBytes", Input: "Note," + strings.Repeat("x", DefaultMaxLineBytes) + "\nWavelength (nm),%T\n500,50\n600,60\n", Error: ErrTooLarge, Line: 1},
+
+	// Units that contradict the values: the photon energy leaves
+	// 0.005–25 eV.
+	{Name: "Unit/UmInNmColumn", Input: "Wavelength (nm),%T\n0.85,50\n0.90,60\n", Error: ErrUnit, Line: 2, Column: 1, Detail: []string{"um"}},
+	{Name: "Unit/NmInEVColumn", Input: "Energy (eV),A\n850,0.5\n900,0.6\n", Error: ErrUnit, Line: 3, Column: 1, Detail: []string{"--x-unit nm"}},
+	{Name: "Unit/OptionWrong", Input: "850,50\n900,60\n", XUnit: Micrometre, YKind: TransmittancePercent, Error: ErrUnit, Line: 2, Detail: []string{"--x-unit"}},
+	// Absorbance that cannot be: negative everywhere, or %T values.
+	{Name: "Absorbance/AllNegative", Input: "Wavelength (nm),Abs\n500,-0.2\n600,-0.1\n", Error: ErrRange, Line: 3, Column: 5, Detail: []string{"swapped"}},
+	{Name: "Absorbance/PercentT", Input: "Wavelength (nm),Abs\n500,20\n600,40\n700,60\n", Error: ErrRange, Line: 4, Column: 5, Detail: []string{"--y-kind T%"}},
+	// A decimal comma in a comma-separated file: twice the cells.
+	{Name: "DecimalCommaCommaSeparated", Input: "Wavelength (nm),%T\n500,0,50,5\n600,0,60,5\n", Error: ErrSyntax, Line: 2, Detail: []string{"decimal separator"}},
 
 	// Bad cells.
 	{
