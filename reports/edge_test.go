@@ -22,7 +22,7 @@ import (
 
 // edgeReport builds the report of a synthetic GaAs-like film (invented
 // test data; seed 5).
-func edgeReport(t *testing.T, thickness float64) EdgeReport {
+func edgeReport(t testing.TB, thickness float64) EdgeReport {
 	t.Helper()
 	c := model.AmplitudeFromKane(28.8, 3.6, model.ReducedMass(0.067, 0.51))
 	e := synth.WavelengthGrid(700, 1000, 1)
