@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -24,6 +25,8 @@ import (
 	"bandedge/io/quantity"
 	"bandedge/io/results"
 	"bandedge/io/sheet"
+	"bandedge/io/specio"
+	"bandedge/model"
 	"bandedge/reports"
 )
 
@@ -50,6 +53,12 @@ type batchOptions struct {
 	IsTerminal func(w io.Writer) bool
 	// OnProgress, when set, is called after each finished scan (tests).
 	OnProgress func(done, total int)
+	// Resume: reuse the results of an earlier run into OutDir where the
+	// input and the settings are unchanged (--resume).
+	Resume bool
+	// Analyze, when set, analyses each scan instead of scan.Analyze
+	// (tests count the analyses with it).
+	Analyze func(ctx context.Context, name string, b []byte, s scan.Settings) (*scan.Outcome, error)
 }
 
 func newBatchCmd(runF func(context.Context, *batchOptions) error) *cobra.Command {
@@ -63,6 +72,9 @@ func newBatchCmd(runF func(context.Context, *batchOptions) error) *cobra.Command
 			"gives limits judged with a guard band from each scan's expanded uncertainty U. OUTDIR receives\n" +
 			"summary.csv, summary.json, failures.txt, rollup.csv, rollup.json, results/<scan>.json,\n" +
 			"reports/<scan>.png and maps/<wafer>.png. A bad file never stops the batch.\n\n" +
+			"Ctrl-C (or SIGTERM) stops the running fits; every finished scan's files are kept and the summary\n" +
+			"lists the rest as cancelled. The same command with --resume then completes the batch: a scan whose\n" +
+			"results/<scan>.json has the same input SHA-256, settings and tool version is not fitted again.\n\n" +
 			"Exit status: 5 if any scan or wafer fails its spec, else 3 if any scan could not be read or\n" +
 			"fitted, else 6 if any verdict is indeterminate, else 0 (see the README).",
 		Example: "  bandedge batch scans/ --out lot-out --samples samples.csv --spec spec.txt --index 3.6\n" +
@@ -105,6 +117,7 @@ func newBatchCmd(runF func(context.Context, *batchOptions) error) *cobra.Command
 	f.IntVar(&opts.Workers, "workers", 0, "scans fitted at once (default: all cores, GOMAXPROCS)")
 	f.BoolVar(&opts.NoReports, "no-reports", false, "do not draw a PNG report per scan (the wafer maps are still drawn)")
 	f.StringVar(&opts.WaferDiameter, "wafer-diameter", "100mm", "wafer diameter for the wafer maps, with a unit: 100mm, 150mm, 200mm")
+	f.BoolVar(&opts.Resume, "resume", false, "complete an interrupted batch into the same --out: reuse every results/<scan>.json whose input SHA-256, settings and tool version match, refit the rest")
 	return cmd
 }
 
@@ -167,25 +180,38 @@ func runBatch(ctx context.Context, opts *batchOptions) error {
 		}
 	}
 	resDir, repDir, mapDir := filepath.Join(opts.OutDir, "results"), filepath.Join(opts.OutDir, "reports"), filepath.Join(opts.OutDir, "maps")
-	for _, d := range []string{opts.OutDir, resDir, mapDir} {
-		if err := os.MkdirAll(d, 0o755); err != nil {
-			return err
-		}
-	}
+	dirs := []string{opts.OutDir, resDir, mapDir}
 	if !opts.NoReports {
-		if err := os.MkdirAll(repDir, 0o755); err != nil {
-			return err
+		dirs = append(dirs, repDir)
+	}
+	for _, d := range dirs {
+		if err := os.MkdirAll(d, 0o755); err != nil {
+			return flagErrorf("--out %s: cannot create the output folder: %v", opts.OutDir, err)
 		}
 	}
 	now := opts.Now().UTC()
 	prov := func(s scan.Settings) results.Provenance { return results.NewProvenance(version, s, now) }
+	var resume *results.Resume
+	var reuse func(lot.Job, string) (*results.Record, string)
+	if opts.Resume {
+		// A process killed while writing leaves temporary files: the
+		// files they were to replace are intact, the temporaries are not.
+		n, err := atomicfile.RemoveStale(opts.OutDir, resDir, repDir, mapDir)
+		if err != nil {
+			return err
+		}
+		resume = &results.Resume{StaleRemoved: n, Refitted: []results.Refit{}}
+		reuse = func(j lot.Job, sum string) (*results.Record, string) {
+			return reusable(opts, j, sum, resDir, repDir)
+		}
+	}
 	workers := opts.Workers
 	if workers == 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
 	progress := newProgress(opts, len(jobs))
 	set := &lot.Settings{
-		Workers: workers, Spec: spec, Provenance: prov, Progress: progress.update,
+		Workers: workers, Spec: spec, Provenance: prov, Progress: progress.update, Reuse: reuse, Analyze: opts.Analyze,
 		Done: func(ctx context.Context, sc *lot.Scan, o *scan.Outcome) error {
 			return writeScanFiles(opts, sc, o, resDir, repDir)
 		},
@@ -196,6 +222,19 @@ func runBatch(ctx context.Context, opts *batchOptions) error {
 	br := &batchRun{scans: scans, workers: workers}
 	br.rollup = lot.Roll(scans, spec)
 	br.summary = buildSummary(opts, scans, samples, spec, now)
+	if resume != nil {
+		for _, sc := range scans {
+			switch {
+			case sc.Reused:
+				resume.Reused++
+			case sc.Refit != "":
+				resume.Refitted = append(resume.Refitted, results.Refit{File: sc.Job.Path, Reason: sc.Refit})
+			case sc.Row.Status != results.StatusCancelled:
+				resume.New++
+			}
+		}
+		br.summary.Resume = resume
+	}
 	if err := writeBatchFiles(opts, br, spec, now); err != nil {
 		return err
 	}
@@ -214,9 +253,89 @@ func runBatch(ctx context.Context, opts *batchOptions) error {
 		return fmt.Errorf("batch outputs: %w", errors.Join(outErrs...))
 	}
 	if runErr != nil {
-		return runErr
+		c := br.summary.Counts
+		return &exitError{code: exitCancelled, err: runErr,
+			msg: fmt.Sprintf("interrupted: %d of %d scans finished and kept in %s, %d cancelled; run the same command with --resume to complete the batch",
+				c.Scans-c.Cancelled, c.Scans, opts.OutDir, c.Cancelled)}
 	}
 	return batchExit(br)
+}
+
+// reusable decides, for --resume, whether a scan's earlier record can
+// stand for a new analysis: it must be readable, of this record schema
+// and tool version, for the same input path, of the same bytes (SHA-256)
+// and the same settings (their digest), and its report must exist when
+// reports are drawn. It returns the record, or nil and the reason the
+// scan is analysed again ("" when there is no earlier record).
+func reusable(opts *batchOptions, j lot.Job, sum, resDir, repDir string) (*results.Record, string) {
+	path := filepath.Join(resDir, j.Name+".json")
+	f, err := os.Open(path)
+	if errors.Is(err, os.ErrNotExist) {
+		return nil, ""
+	}
+	if err != nil {
+		return nil, fmt.Sprintf("its earlier result cannot be opened: %v", err)
+	}
+	defer f.Close()
+	rec, err := results.ReadRecord(f, path)
+	if err != nil {
+		return nil, fmt.Sprintf("its earlier result cannot be read: %v", err)
+	}
+	p := &rec.Provenance
+	switch {
+	case p.Schema != results.SchemaVersion:
+		return nil, fmt.Sprintf("its earlier result has record schema %d, this tool writes %d", p.Schema, results.SchemaVersion)
+	case p.Version != version:
+		return nil, fmt.Sprintf("its earlier result was made by bandedge %s, this is %s", p.Version, version)
+	case rec.File != j.Path:
+		return nil, fmt.Sprintf("its earlier result is of %s", rec.File)
+	case rec.SHA256 != sum:
+		return nil, fmt.Sprintf("the file changed (sha256 %.12s… then, %.12s… now)", rec.SHA256, sum)
+	case p.SettingsSHA256 != results.SettingsDigest(j.Settings):
+		return nil, "the settings changed: " + settingsDiff(p.Settings, j.Settings)
+	}
+	if !opts.NoReports {
+		if _, err := os.Stat(filepath.Join(repDir, j.Name+".png")); err != nil {
+			return nil, "its report is missing"
+		}
+	}
+	return rec, ""
+}
+
+// settingsDiff names the settings that differ between a and b, as their
+// JSON fields: "thickness_cm 0.0002 → 0.00019".
+func settingsDiff(a, b scan.Settings) string {
+	fields := func(s scan.Settings) map[string]string {
+		m := map[string]json.RawMessage{}
+		raw, _ := json.Marshal(s)
+		json.Unmarshal(raw, &m)
+		out := map[string]string{}
+		for k, v := range m {
+			out[k] = string(v)
+		}
+		return out
+	}
+	fa, fb := fields(a), fields(b)
+	var keys []string
+	for k := range fa {
+		keys = append(keys, k)
+	}
+	for k := range fb {
+		if _, ok := fa[k]; !ok {
+			keys = append(keys, k)
+		}
+	}
+	sort.Strings(keys)
+	var diff []string
+	for _, k := range keys {
+		if fa[k] != fb[k] {
+			diff = append(diff, fmt.Sprintf("%s %s → %s", k, orDashText(fa[k]), orDashText(fb[k])))
+		}
+	}
+	if len(diff) == 0 {
+		return "the recorded digest does not match"
+	}
+	return strings.Join(diff, ", ")
 }
 
 func readSheet(path string) (*sheet.Samples, error) {
@@ -225,7 +344,8 @@ func readSheet(path string) (*sheet.Samples, error) {
 		return nil, &exitError{code: exitInput, msg: fmt.Sprintf("sample sheet: %v", err)}
 	}
 	defer f.Close()
-	return sheet.ReadSamples(f, path)
+	s, err := sheet.ReadSamples(f, path)
+	return s, inputError("sample sheet", err)
 }
 
 func readSpec(path string) (*sheet.Spec, error) {
@@ -234,7 +354,19 @@ func readSpec(path string) (*sheet.Spec, error) {
 		return nil, &exitError{code: exitInput, msg: fmt.Sprintf("spec: %v", err)}
 	}
 	defer f.Close()
-	return sheet.ReadSpec(f, path)
+	s, err := sheet.ReadSpec(f, path)
+	return s, inputError("spec", err)
+}
+
+// inputError classifies an error reading the sample sheet or spec file
+// as an input error (exit 3): a *specio.ParseError already is; any other
+// (a folder given as the file, a read error) is wrapped.
+func inputError(what string, err error) error {
+	var pe *specio.ParseError
+	if err == nil || errors.As(err, &pe) {
+		return err
+	}
+	return &exitError{code: exitInput, msg: fmt.Sprintf("%s: %v", what, err), err: err}
 }
 
 // writeScanFiles writes one scan's result record and report as soon as it
@@ -244,6 +376,14 @@ func writeScanFiles(opts *batchOptions, sc *lot.Scan, o *scan.Outcome, resDir, r
 		return nil
 	}
 	rel := filepath.Join("results", sc.Job.Name+".json")
+	if sc.Reused {
+		// The earlier run wrote them; reusable checked the report exists.
+		sc.Row.ResultFile = rel
+		if !opts.NoReports {
+			sc.Row.ReportFile = filepath.Join("reports", sc.Job.Name+".png")
+		}
+		return nil
+	}
 	if err := atomicfile.Write(filepath.Join(resDir, sc.Job.Name+".json"), func(w io.Writer) error {
 		return results.WriteJSON(w, sc.Record)
 	}); err != nil {
@@ -300,9 +440,10 @@ func writeBatchReport(path string, o *scan.Outcome, sc *lot.Scan) error {
 }
 
 func buildSummary(opts *batchOptions, scans []lot.Scan, samples *sheet.Samples, spec *sheet.Spec, now time.Time) *results.Summary {
-	s := &results.Summary{Schema: results.SummarySchema, Tool: "bandedge", Version: version,
-		Time: now.Format(time.RFC3339), Settings: opts.Settings, Samples: opts.Samples, SpecFile: opts.Spec,
-		Limits: []results.LimitBound{}, ExtraColumns: []string{}}
+	s := &results.Summary{Schema: results.SummarySchema, Tool: "bandedge", Version: version, GoVersion: runtime.Version(),
+		Platform: runtime.GOOS + "/" + runtime.GOARCH, Time: now.Format(time.RFC3339), Settings: opts.Settings,
+		SettingsSHA256: results.SettingsDigest(opts.Settings), Model: modelOf(opts.Settings), Tail: tailOf(opts.Settings),
+		Samples: opts.Samples, SpecFile: opts.Spec, Limits: []results.LimitBound{}, ExtraColumns: []string{}}
 	if samples != nil {
 		s.ExtraColumns = append(s.ExtraColumns, samples.ExtraColumns...)
 	}
@@ -322,6 +463,10 @@ func buildSummary(opts *batchOptions, scans []lot.Scan, samples *sheet.Samples, 
 			s.Counts.OK++
 		case results.StatusNotConverged:
 			s.Counts.NotConverged++
+		case results.StatusSingular:
+			s.Counts.Singular++
+		case results.StatusAtBound:
+			s.Counts.AtBound++
 		case results.StatusCancelled:
 			s.Counts.Cancelled++
 		default:
@@ -339,6 +484,27 @@ func buildSummary(opts *batchOptions, scans []lot.Scan, samples *sheet.Samples, 
 	return s
 }
 
+// modelOf is the model the settings name ("direct+urbach" when none).
+func modelOf(s scan.Settings) string {
+	if s.Model == "" {
+		return "direct+urbach"
+	}
+	return s.Model
+}
+
+// tailOf is the tail of the model the settings name ("auto" for a
+// comparison).
+func tailOf(s scan.Settings) string {
+	m := modelOf(s)
+	if m == scan.Auto {
+		return scan.Auto
+	}
+	if _, tail, _, err := model.ParseName(m); err == nil {
+		return tail
+	}
+	return ""
+}
+
 func finiteNum(v float64) results.Num {
 	if math.IsInf(v, 0) {
 		return results.Num(math.NaN())
@@ -348,8 +514,9 @@ func finiteNum(v float64) results.Num {
 
 // writeBatchFiles writes the summary, failures and roll-up files.
 func writeBatchFiles(opts *batchOptions, br *batchRun, spec *sheet.Spec, now time.Time) error {
-	ru := &results.Rollup{Schema: results.SummarySchema, Tool: "bandedge", Version: version, Time: now.Format(time.RFC3339),
-		DecisionRule: br.summary.DecisionRule, Groups: br.rollup.Rows(spec)}
+	ru := &results.Rollup{Schema: results.SummarySchema, Tool: "bandedge", Version: version, Platform: br.summary.Platform,
+		Time: now.Format(time.RFC3339), SettingsSHA256: br.summary.SettingsSHA256, DecisionRule: br.summary.DecisionRule,
+		Groups: br.rollup.Rows(spec)}
 	files := []struct {
 		name  string
 		write func(w io.Writer) error
@@ -417,8 +584,7 @@ func drawWaferMaps(opts *batchOptions, br *batchRun, spec *sheet.Spec, dir strin
 	}
 	used := map[string]bool{}
 	for _, g := range br.rollup.Wafers {
-		m := reports.WaferMap{Wafer: g.Wafer, Lot: g.Lot, Diameter: opts.DiameterMM,
-			Footer: fmt.Sprintf("bandedge %s · %s/%s · %s", version, runtime.GOOS, runtime.GOARCH, now.Format(time.RFC3339))}
+		m := reports.WaferMap{Wafer: g.Wafer, Lot: g.Lot, Diameter: opts.DiameterMM, Footer: mapFooter(br.summary)}
 		if spec != nil {
 			m.Verdict = g.Verdict.String()
 			m.Rule = lot.DecisionRule(spec, opts.Settings.Coverage)
@@ -492,6 +658,15 @@ func drawWaferMaps(opts *batchOptions, br *batchRun, spec *sheet.Spec, dir strin
 	return nil
 }
 
+// mapFooter is the short provenance of a wafer map: as a report's footer,
+// with the command-line settings' digest (the summary and every result
+// record carry the full settings) and "summary.json" for the inputs.
+func mapFooter(s *results.Summary) string {
+	p := results.Provenance{Tool: s.Tool, Version: s.Version, Platform: s.Platform, Time: s.Time, Model: s.Model,
+		SettingsSHA256: s.SettingsSHA256}
+	return p.Short("") + " · inputs and sha256 in summary.json"
+}
+
 // siteVerdict is the verdict a site's marker shows: the scan's overall
 // verdict (every limit), the same on every panel, so that each site that
 // makes its wafer fail or indeterminate is marked as such wherever it is
@@ -546,7 +721,7 @@ func batchExit(br *batchRun) error {
 		}
 		return n
 	}
-	notFitted := c.Failed + c.NotConverged + c.Cancelled
+	notFitted := c.Failed + c.NotConverged + c.Singular + c.AtBound + c.Cancelled
 	switch {
 	case c.Fail > 0 || anyWafer("fail") > 0:
 		return &exitError{code: exitFail, msg: fmt.Sprintf("spec failed: %s and %s fail", count(anyWafer("fail"), "wafer"), count(c.Fail, "scan"))}
@@ -564,10 +739,21 @@ func printBatch(w io.Writer, opts *batchOptions, br *batchRun, spec *sheet.Spec)
 	c := br.summary.Counts
 	fmt.Fprintf(w, "batch       %d scans, %d workers, %.1f s\n", c.Scans, br.workers, br.elapsed.Seconds())
 	line := fmt.Sprintf("fitted      %d", c.OK)
-	if n := c.Failed + c.NotConverged + c.Cancelled; n > 0 {
-		line += fmt.Sprintf("; not fitted %d (failed %d, not converged %d, cancelled %d: see failures.txt)", n, c.Failed, c.NotConverged, c.Cancelled)
+	if n := c.Failed + c.NotConverged + c.Singular + c.AtBound + c.Cancelled; n > 0 {
+		line += fmt.Sprintf("; not fitted or not to be trusted %d (failed %d, not converged %d, singular covariance %d, on a bound %d, cancelled %d: see failures.txt)",
+			n, c.Failed, c.NotConverged, c.Singular, c.AtBound, c.Cancelled)
 	}
 	fmt.Fprintln(w, line)
+	if r := br.summary.Resume; r != nil {
+		fmt.Fprintf(w, "resume      reused %d, refitted %d, new %d", r.Reused, len(r.Refitted), r.New)
+		if r.StaleRemoved > 0 {
+			fmt.Fprintf(w, "; removed %s of an interrupted write", count(r.StaleRemoved, "temporary file"))
+		}
+		fmt.Fprintln(w)
+		for _, f := range r.Refitted {
+			fmt.Fprintf(w, "  refitted %s: %s\n", f.File, f.Reason)
+		}
+	}
 	if spec != nil {
 		title := spec.Title
 		if title == "" {
@@ -605,7 +791,7 @@ func printBatch(w io.Writer, opts *batchOptions, br *batchRun, spec *sheet.Spec)
 	fmt.Fprintln(w)
 	fmt.Fprintf(w, "summary     %s (and summary.json)\n", filepath.Join(opts.OutDir, "summary.csv"))
 	fmt.Fprintf(w, "roll-up     %s (and rollup.json)\n", filepath.Join(opts.OutDir, "rollup.csv"))
-	fmt.Fprintf(w, "failures    %s (%s)\n", filepath.Join(opts.OutDir, "failures.txt"), count(c.Failed+c.NotConverged+c.Cancelled, "line"))
+	fmt.Fprintf(w, "failures    %s (%s)\n", filepath.Join(opts.OutDir, "failures.txt"), count(c.Failed+c.NotConverged+c.Singular+c.AtBound+c.Cancelled, "line"))
 	fmt.Fprintf(w, "results     %s/ (one JSON record per fitted scan)\n", filepath.Join(opts.OutDir, "results"))
 	if !opts.NoReports {
 		fmt.Fprintf(w, "reports     %s/ (one PNG per fitted scan)\n", filepath.Join(opts.OutDir, "reports"))

@@ -39,8 +39,13 @@ func TestNewBatchCmd(t *testing.T) {
 					t.Errorf("diameter %g, settings %+v, abs %v", o.DiameterMM, o.Settings, o.ThicknessErrAbs)
 				}
 			}},
+		{name: "resume", args: "scans --out o --resume", check: func(t *testing.T, o *batchOptions) {
+			if !o.Resume {
+				t.Errorf("--resume not set")
+			}
+		}},
 		{name: "defaults", args: "scans --out o", check: func(t *testing.T, o *batchOptions) {
-			if o.Workers != 0 || o.NoReports || o.DiameterMM != 100 || o.Samples != "" || o.ThicknessErrAbs {
+			if o.Workers != 0 || o.NoReports || o.DiameterMM != 100 || o.Samples != "" || o.ThicknessErrAbs || o.Resume {
 				t.Errorf("options %+v", o)
 			}
 		}},
@@ -269,8 +274,37 @@ func TestRunBatchReports(t *testing.T) {
 	}
 }
 
+// stripTimes blanks the time stamps of a batch output file: the "time"
+// fields of the JSON files, the analysed_at column of summary.csv.
+func stripTimes(t *testing.T, name string, b []byte) []byte {
+	t.Helper()
+	if !strings.HasSuffix(name, ".csv") {
+		return regexp.MustCompile(`"time": "[^"]*"`).ReplaceAll(b, []byte(`"time": ""`))
+	}
+	recs, err := csv.NewReader(bytes.NewReader(b)).ReadAll()
+	if err != nil || len(recs) == 0 {
+		t.Fatalf("%s: %v", name, err)
+	}
+	col := -1
+	for i, h := range recs[0] {
+		if h == "analysed_at" {
+			col = i
+		}
+	}
+	if col < 0 {
+		return b
+	}
+	var out bytes.Buffer
+	w := csv.NewWriter(&out)
+	for _, r := range recs[1:] {
+		r[col] = ""
+	}
+	w.WriteAll(recs)
+	return out.Bytes()
+}
+
 // TestRunBatchDeterministic: the outputs do not depend on the number of
-// workers (summary.csv byte for byte; summary.json and rollup.json but
+// workers (summary.csv, summary.json and rollup.json byte for byte but
 // for their time stamps).
 func TestRunBatchDeterministic(t *testing.T) {
 	var outs [][3][]byte
@@ -286,7 +320,7 @@ func TestRunBatchDeterministic(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			got[i] = regexp.MustCompile(`"time": "[^"]*"`).ReplaceAll(b, []byte(`"time": ""`))
+			got[i] = stripTimes(t, f, b)
 		}
 		outs = append(outs, got)
 	}

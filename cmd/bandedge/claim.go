@@ -112,6 +112,9 @@ func printClaimRule(w io.Writer, c lot.Claim) {
 
 func claimScan(ctx context.Context, opts *claimOptions, c lot.Claim) (lot.ClaimVerdict, error) {
 	o, err := scan.AnalyzeFile(ctx, opts.Target, opts.Settings)
+	if err == nil && ctx.Err() != nil {
+		err = ctx.Err() // interrupted: the budget may lack terms
+	}
 	if err != nil {
 		return 0, classify(err)
 	}
@@ -121,9 +124,10 @@ func claimScan(ctx context.Context, opts *claimOptions, c lot.Claim) (lot.ClaimV
 	printClaimHead(w, c)
 	fmt.Fprintf(w, "scan        %s\n", opts.Target)
 	measured, uc := row.EgEV.Float(), row.EgErrEV.Float()
-	if !o.Result.Converged {
+	if t := rec.IssueText(); t != "" {
+		// Not converged, singular or on a bound: no estimate to judge.
 		measured = math.NaN()
-		fmt.Fprintf(w, "note        the fit did not converge (%s): its numbers are not an estimate\n", o.Result.Status)
+		fmt.Fprintf(w, "note        %s\n", t)
 	}
 	r := lot.JudgeClaim(c, measured, uc, row.EgDominant, row.EgDominantU.Float())
 	if math.IsNaN(row.EgEV.Float()) {

@@ -14,6 +14,13 @@ import (
 
 func main() {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	go func() {
+		// The first Ctrl-C (or SIGTERM) cancels ctx and the command stops
+		// cleanly, writing what it finished; restoring the default
+		// handling makes a second one end the process at once.
+		<-ctx.Done()
+		stop()
+	}()
 	code := run(ctx, os.Args[1:], os.Stdout, os.Stderr)
 	stop()
 	os.Exit(code)

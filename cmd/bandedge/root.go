@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -38,13 +39,16 @@ func flagErrorf(format string, a ...any) error {
 	return &flagError{fmt.Errorf(format, a...)}
 }
 
-// exitError carries an exit code chosen by a command (verdicts).
+// exitError carries an exit code chosen by a command (verdicts), and
+// optionally the error it stands for (err, for errors.Is).
 type exitError struct {
 	code int
 	msg  string
+	err  error
 }
 
 func (e *exitError) Error() string { return e.msg }
+func (e *exitError) Unwrap() error { return e.err }
 
 func newRootCmd(out, errOut io.Writer) *cobra.Command {
 	root := &cobra.Command{
@@ -61,7 +65,39 @@ func newRootCmd(out, errOut io.Writer) *cobra.Command {
 	root.SetErr(errOut)
 	root.SetFlagErrorFunc(func(_ *cobra.Command, err error) error { return &flagError{err} })
 	root.AddCommand(newFitCmd(nil), newDemoCmd(nil), newVerifyCmd(nil), newTrendCmd(nil), newBatchCmd(nil), newClaimCmd(nil))
+	// A wrong number of arguments, or an unknown command, is a usage
+	// error (exit 2, with the usage line), like a bad flag: cobra's
+	// argument validators return plain errors, so wrap them.
+	for _, c := range root.Commands() {
+		c.Args = usageArgs(c.Args)
+	}
+	root.Args = cobra.ArbitraryArgs
+	root.SuggestionsMinimumDistance = 2
+	root.RunE = func(cmd *cobra.Command, args []string) error {
+		if len(args) == 0 {
+			return cmd.Help()
+		}
+		msg := fmt.Sprintf("unknown command %q for %q", args[0], cmd.CommandPath())
+		if s := cmd.SuggestionsFor(args[0]); len(s) > 0 {
+			msg += "; did you mean " + strings.Join(s, " or ") + "?"
+		}
+		return &flagError{errors.New(msg)}
+	}
 	return root
+}
+
+// usageArgs wraps a cobra argument validator so that its errors are
+// flagErrors.
+func usageArgs(v cobra.PositionalArgs) cobra.PositionalArgs {
+	if v == nil {
+		return nil
+	}
+	return func(cmd *cobra.Command, args []string) error {
+		if err := v(cmd, args); err != nil {
+			return &flagError{err}
+		}
+		return nil
+	}
 }
 
 // run executes the command line and maps errors to exit codes in one place.

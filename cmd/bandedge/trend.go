@@ -2,6 +2,8 @@ package main
 
 import (
 	"context"
+	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
 	"io"
 	"strings"
@@ -85,10 +87,11 @@ type trendRecord struct {
 }
 
 type trendPoint struct {
-	File string      `json:"file"`
-	T    results.Num `json:"temperature_k"`
-	Eg   results.Num `json:"eg_ev"`
-	U    results.Num `json:"eg_err_ev"`
+	File   string      `json:"file"`
+	SHA256 string      `json:"sha256"`
+	T      results.Num `json:"temperature_k"`
+	Eg     results.Num `json:"eg_ev"`
+	U      results.Num `json:"eg_err_ev"`
 }
 
 type trendFit struct {
@@ -111,6 +114,7 @@ func runTrend(ctx context.Context, opts *trendOptions) error {
 		}
 	}
 	var pts []trend.Point
+	var sums []string // SHA-256 of each point's file
 	var failures []string
 	for _, f := range opts.Files {
 		if err := ctx.Err(); err != nil {
@@ -139,12 +143,21 @@ func runTrend(ctx context.Context, opts *trendOptions) error {
 		}
 		s.Temperature = t
 		o, err := scan.AnalyzeFile(ctx, f, s)
+		if err := ctx.Err(); err != nil {
+			return err // interrupted: the last analysis may lack budget terms
+		}
 		if err != nil {
 			failures = append(failures, err.Error())
 			continue
 		}
+		if issue := results.FromOutcome(o, results.Provenance{}).IssueText(); issue != "" {
+			// A gap without a trustworthy uncertainty cannot weight the fit.
+			failures = append(failures, fmt.Sprintf("%s: not used: %s", f, issue))
+			continue
+		}
 		eg, _ := o.Result.Param("eg")
 		pts = append(pts, trend.Point{Label: f, T: t, Eg: eg.Value, U: o.Result.Budgets["eg"].Combined})
+		sums = append(sums, o.SHA256)
 	}
 	for _, msg := range failures {
 		fmt.Fprintln(opts.ErrOut, "bandedge: trend:", msg)
@@ -163,9 +176,11 @@ func runTrend(ctx context.Context, opts *trendOptions) error {
 		return &exitError{code: exitFit, msg: strings.Join(fitErrs, "; ")}
 	}
 	prov := results.NewProvenance(version, opts.Settings, opts.Now())
+	prov.Model = modelOf(opts.Settings)
+	prov.Tail = tailOf(opts.Settings)
 	if opts.Report != "" {
 		pg, err := reports.TrendFigure(reports.TrendReport{Title: "E_g(T): " + fmt.Sprintf("%d scans", len(pts)), Points: pts, Fits: fits,
-			Footer: fmt.Sprintf("bandedge %s · %s · %s", prov.Version, prov.Platform, prov.Time)})
+			Footer: trendFooter(prov, sums)})
 		if err != nil {
 			return err
 		}
@@ -175,8 +190,8 @@ func runTrend(ctx context.Context, opts *trendOptions) error {
 	}
 	if opts.JSON {
 		rec := trendRecord{Failures: append([]string{}, failures...), Provenance: prov}
-		for _, p := range pts {
-			rec.Points = append(rec.Points, trendPoint{File: p.Label, T: results.Num(p.T), Eg: results.Num(p.Eg), U: results.Num(p.U)})
+		for i, p := range pts {
+			rec.Points = append(rec.Points, trendPoint{File: p.Label, SHA256: sums[i], T: results.Num(p.T), Eg: results.Num(p.Eg), U: results.Num(p.U)})
 		}
 		for _, f := range fits {
 			tf := trendFit{Form: f.Form.Name(), Params: map[string]results.Num{}, StdErr: map[string]results.Num{},
@@ -224,4 +239,12 @@ func runTrend(ctx context.Context, opts *trendOptions) error {
 		}
 	}
 	return nil
+}
+
+// trendFooter is the short provenance of the trend page: as a report's
+// footer, with the SHA-256 of the inputs' SHA-256 digests (hex, in the
+// order of the points; the JSON output lists each).
+func trendFooter(p results.Provenance, sums []string) string {
+	h := sha256.Sum256([]byte(strings.Join(sums, "\n")))
+	return p.Short("") + fmt.Sprintf(" · %d inputs, sha256 of their sha256 %s…", len(sums), hex.EncodeToString(h[:])[:12])
 }

@@ -54,8 +54,9 @@ type Scan struct {
 	Row results.Row
 	// Record is the full result record (nil unless fitted).
 	Record *results.Record
-	// Err is why the scan was not fitted (nil for a fitted scan, also one
-	// that did not converge).
+	// Err is why the scan was not fitted, or what its fit's issues are
+	// (not converged, singular covariance, a parameter on its bound; see
+	// results.Record.IssueText); nil for a fit without issues.
 	Err error
 	// Judgements are the spec's scan-level limits applied to this scan,
 	// in the spec's order; Verdict is the worst of them (sheet.NoLimit
@@ -64,9 +65,16 @@ type Scan struct {
 	Verdict    sheet.Verdict
 	// OutputErr is the error of Settings.Done, if any.
 	OutputErr error
+	// Reused is true when the scan was not analysed again but taken from
+	// the record of an earlier run (Settings.Reuse); Refit says why an
+	// earlier result was not reused ("" when there was none).
+	Reused bool
+	Refit  string
 }
 
-// Fitted reports whether the scan has a converged fit.
+// Fitted reports whether the scan has a fit without issues: converged,
+// with a covariance and no parameter on its bound (status ok). Only such
+// scans enter the roll-up statistics and can pass a limit.
 func (s *Scan) Fitted() bool { return s.Row.Status == results.StatusOK }
 
 // Settings configure Run. A nil *Settings uses the defaults.
@@ -87,6 +95,15 @@ type Settings struct {
 	// cancelled batch keeps every finished result. It must not touch
 	// another scan's state. Its error is kept in Scan.OutputErr.
 	Done func(ctx context.Context, sc *Scan, o *scan.Outcome) error
+	// Reuse, when not nil, is asked before a scan is analysed, with the
+	// job and the SHA-256 of the file's bytes as read now. It returns the
+	// record of an earlier run to reuse instead of analysing the file again
+	// (batch --resume), or nil and the reason the scan must be analysed
+	// anew ("" when there is no earlier result). A reused scan gets its row
+	// from the record (results.RowFromRecord) and is judged from it, so its
+	// row and verdicts are those the earlier analysis gave; Done is called
+	// for it with a nil outcome and Scan.Reused set.
+	Reuse func(j Job, sha256 string) (*results.Record, string)
 	// Progress, when not nil, is called after each finished scan with
 	// the number done, the total and the number not fitted so far. It is
 	// called from Run's own goroutine, one call at a time.
@@ -180,34 +197,50 @@ func runJob(ctx context.Context, j Job, set *Settings) Scan {
 	case j.Err != nil:
 		sc.Err = j.Err
 	default:
-		analyze := set.Analyze
-		if analyze == nil {
-			analyze = scan.Analyze
+		var rec *results.Record
+		if set.Reuse != nil {
+			rec, sc.Refit = set.Reuse(j, sum)
+			sc.Reused = rec != nil
 		}
-		o, err = analyze(ctx, j.Path, b, j.Settings)
-		if err != nil {
-			o = nil
-			sc.Err = err
-			if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
-				sc = cancelled(j)
-				sc.Row.SHA256 = sum
+		if rec == nil {
+			analyze := set.Analyze
+			if analyze == nil {
+				analyze = scan.Analyze
+			}
+			o, err = analyze(ctx, j.Path, b, j.Settings)
+			if err == nil && ctx.Err() != nil {
+				// Cancelled while it ran: the analysis skips the budget
+				// refits a cancellation stops, so its result may lack
+				// uncertainty terms. Not a result to keep.
+				err = fmt.Errorf("%s: analysis interrupted: %w", j.Path, ctx.Err())
+			}
+			if err != nil {
+				o = nil
+				sc.Err = err
+				if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+					refit := sc.Refit
+					sc = cancelled(j)
+					sc.Row.SHA256, sc.Refit = sum, refit
+				}
 			}
 		}
-	}
-	if o != nil {
-		prov := results.Provenance{Settings: j.Settings}
-		if set.Provenance != nil {
-			prov = set.Provenance(j.Settings)
+		if o != nil {
+			prov := results.Provenance{Settings: j.Settings}
+			if set.Provenance != nil {
+				prov = set.Provenance(j.Settings)
+			}
+			rec = results.FromOutcome(o, prov)
 		}
-		rec := results.FromOutcome(o, prov)
-		row := results.RowFromOutcome(o, rec)
-		describeSample(&row, j.Sample)
-		row.SHA256 = sum
-		sc.Row, sc.Record = row, rec
-		if !o.Result.Converged {
-			sc.Err = fmt.Errorf("%s: the fit did not converge (%s): its numbers are the last iterate, not an estimate", j.Path, o.Result.Status)
+		if rec != nil {
+			row := results.RowFromRecord(rec)
+			describeSample(&row, j.Sample)
+			row.SHA256 = sum
+			sc.Row, sc.Record = row, rec
+			if t := rec.IssueText(); t != "" {
+				sc.Err = fmt.Errorf("%s: %s", j.Path, t)
+			}
+			judge(&sc, set.Spec)
 		}
-		judge(&sc, o, set.Spec)
 	}
 	if sc.Err != nil {
 		sc.Row.Error = oneLine(sc.Err.Error())

@@ -102,7 +102,8 @@ func TestJudgeLimits(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			o := fakeOutcome(tc.eg, 0.0005, 0.008, 0.0001, tc.tailOnly)
 			sc := Scan{Row: rowFor(o)}
-			judge(&sc, o, spec)
+			sc.Record = results.FromOutcome(o, results.Provenance{})
+			judge(&sc, spec)
 			if len(sc.Judgements) != 2 {
 				t.Fatalf("%d judgements, want 2", len(sc.Judgements))
 			}
@@ -143,7 +144,8 @@ func TestJudgeRules(t *testing.T) {
 			spec := readSpec(t, "bandedge-spec 1\nguard "+tc.guard+"\nlimit eg_ev 1.415 .. 1.435\n")
 			o := fakeOutcome(tc.eg, 0.0005, 0.008, 0.0001, tc.tailOnly)
 			sc := Scan{Row: rowFor(o)}
-			judge(&sc, o, spec)
+			sc.Record = results.FromOutcome(o, results.Provenance{})
+			judge(&sc, spec)
 			if sc.Verdict != tc.want {
 				t.Errorf("verdict %v, want %v", sc.Verdict, tc.want)
 			}
@@ -162,7 +164,8 @@ func TestRollStats(t *testing.T) {
 			o := fakeOutcome(eg, 0.0005, 0.008, 0.0001, false)
 			sc := Scan{Row: rowFor(o)}
 			sc.Row.Wafer, sc.Row.Lot = w, "L1"
-			judge(&sc, o, spec)
+			sc.Record = results.FromOutcome(o, results.Provenance{})
+			judge(&sc, spec)
 			scans = append(scans, sc)
 		}
 	}
@@ -225,7 +228,8 @@ func TestRollStats(t *testing.T) {
 			if sc.Fitted() {
 				sc.Judgements, sc.Verdict = nil, sheet.NoLimit
 				o := fakeOutcome(sc.Row.EgEV.Float(), 0.0005, 0.008, 0.0001, false)
-				judge(&sc, o, spec2)
+				sc.Record = results.FromOutcome(o, results.Provenance{})
+				judge(&sc, spec2)
 			}
 			s2 = append(s2, sc)
 		}

@@ -5,7 +5,6 @@ import (
 	"strings"
 
 	"bandedge/fit/edge"
-	"bandedge/fit/scan"
 	"bandedge/io/results"
 	"bandedge/io/sheet"
 )
@@ -23,24 +22,24 @@ type Measured struct {
 }
 
 // Measure returns every scan-level quantity a spec can name (see
-// sheet.Quantities) for an analysed scan, from the same result as its
-// record and summary row. Where E_g is not determined (edge.Result.TailOnly)
-// E_g, the amplitude and E_P are NaN, so that every rule judges them
-// indeterminate, never pass.
-func Measure(o *scan.Outcome, row *results.Row) map[string]Measured {
-	res := o.Result
+// sheet.Quantities) for a fitted scan, from its record and summary row
+// (which is RowFromRecord of the record), so that a record read back from
+// its file is judged exactly as the analysis that wrote it. Where E_g is
+// not determined (Record.TailOnly) E_g, the amplitude and E_P are NaN, so
+// that every rule judges them indeterminate, never pass.
+func Measure(rec *results.Record, row *results.Row) map[string]Measured {
 	m := map[string]Measured{}
 	withBudget := func(q, key string, v float64) {
-		b, ok := res.Budgets[key]
+		b, ok := rec.Budget(key)
 		if !ok {
 			m[q] = Measured{Value: math.NaN(), Expanded: math.NaN(), Stat: math.NaN()}
 			return
 		}
 		st := math.NaN()
 		if t, ok := b.Term("statistical"); ok {
-			st = b.K * t.U
+			st = float64(b.K) * float64(t.U)
 		}
-		m[q] = Measured{Value: v, Expanded: b.Expanded, Stat: st}
+		m[q] = Measured{Value: v, Expanded: float64(b.Expanded), Stat: st}
 	}
 	withBudget("eg_ev", "eg", float64(row.EgEV))
 	withBudget("urbach_ev", "eu", float64(row.UrbachEV))
@@ -65,14 +64,15 @@ func guardWidth(g sheet.Guard, x Measured) float64 {
 	return x.Expanded
 }
 
-// judge applies the spec's scan-level limits to an analysed scan. A fit
-// that did not converge is indeterminate on every limit: its numbers are
-// not estimates.
-func judge(sc *Scan, o *scan.Outcome, spec *sheet.Spec) {
-	if spec == nil {
+// judge applies the spec's scan-level limits to a fitted scan (one with a
+// Record). A fit with an issue (not converged, singular covariance, a
+// parameter on its bound) is indeterminate on every limit: its numbers are
+// not estimates with a meaningful uncertainty.
+func judge(sc *Scan, spec *sheet.Spec) {
+	if spec == nil || sc.Record == nil {
 		return
 	}
-	m := Measure(o, &sc.Row)
+	m := Measure(sc.Record, &sc.Row)
 	var vs []sheet.Verdict
 	for _, l := range spec.Limits {
 		if strings.HasPrefix(l.Quantity, "wafer.") {
@@ -83,7 +83,7 @@ func judge(sc *Scan, o *scan.Outcome, spec *sheet.Spec) {
 			x = Measured{Value: math.NaN()}
 		}
 		v := spec.Judge(l.Quantity, x.Value, guardWidth(spec.Guard, x))
-		if !o.Result.Converged {
+		if sc.Row.Status != results.StatusOK {
 			v = sheet.Indeterminate
 		}
 		sc.Judgements = append(sc.Judgements, sheet.Judgement{Limit: l, Value: x.Value, Verdict: v})

@@ -1,20 +1,64 @@
 package results
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
+	"fmt"
 	"io"
 	"math"
 	"runtime"
+	"strings"
 	"time"
 
 	"bandedge/fit/edge"
 	"bandedge/fit/scan"
+	"bandedge/io/specio"
+	"bandedge/model"
 	"bandedge/model/optics"
 )
 
 // SchemaVersion identifies the record layout; it changes when a field
-// changes meaning.
-const SchemaVersion = 1
+// changes meaning or a field a reader relies on is added. Schema 2 added
+// issues, tail_only, the budgets' name and dominant term, and the
+// provenance's model, tail and settings digest: --resume reuses only
+// records of this schema.
+const SchemaVersion = 2
+
+// Issues of a fit: the conditions under which its numbers are not
+// estimates with a meaningful uncertainty, in order of severity. Each also
+// has a warning in words; a record lists them in Record.Issues, a summary
+// row's status is the first (StatusOK when there is none).
+const (
+	// IssueNotConverged: the solver stopped early; the numbers are the
+	// last iterate, not an estimate.
+	IssueNotConverged = "not_converged"
+	// IssueSingular: the covariance could not be computed; no parameter
+	// has a statistical uncertainty.
+	IssueSingular = "singular_covariance"
+	// IssueAtBound: a parameter ended on its bound; the optimum may lie
+	// outside the model's range and the interval is not meaningful.
+	IssueAtBound = "at_bound"
+)
+
+// Issues returns the issues of an analysis result, in the order of
+// severity (empty when the fit can be trusted as far as its budget says).
+func Issues(res *edge.Result) []string {
+	out := []string{}
+	if !res.Converged {
+		out = append(out, IssueNotConverged)
+	}
+	if res.Fit != nil && res.Fit.Cov == nil {
+		out = append(out, IssueSingular)
+	}
+	for _, p := range res.Params {
+		if p.AtBound {
+			out = append(out, IssueAtBound)
+			break
+		}
+	}
+	return out
+}
 
 // Record is the result of one scan. The first fields are the stable
 // command-line contract (eg_ev … warnings); the rest add detail.
@@ -38,15 +82,21 @@ type Record struct {
 	Amplitude    Num `json:"amplitude"`
 	AmplitudeErr Num `json:"amplitude_err"`
 	// EPEV and EPErrEV are null unless effective masses were given.
-	EPEV          *Num        `json:"ep_ev"`
-	EPErrEV       *Num        `json:"ep_err_ev"`
-	Chi2Reduced   Num         `json:"chi2_reduced"`
-	PointsUsed    int         `json:"points_used"`
-	WindowEV      [2]Num      `json:"window_ev"`
-	Warnings      []string    `json:"warnings"`
-	WindowRule    string      `json:"window_rule"`
-	Converged     bool        `json:"converged"`
-	Status        string      `json:"status"`
+	EPEV        *Num     `json:"ep_ev"`
+	EPErrEV     *Num     `json:"ep_err_ev"`
+	Chi2Reduced Num      `json:"chi2_reduced"`
+	PointsUsed  int      `json:"points_used"`
+	WindowEV    [2]Num   `json:"window_ev"`
+	Warnings    []string `json:"warnings"`
+	// Issues are the machine-readable trust issues (IssueNotConverged,
+	// IssueSingular, IssueAtBound); empty when there is none.
+	Issues     []string `json:"issues"`
+	WindowRule string   `json:"window_rule"`
+	Converged  bool     `json:"converged"`
+	Status     string   `json:"status"`
+	// TailOnly is true when E_g is not determined (the data show only the
+	// tail): EgEV, Amplitude and EPEV are then extrapolations.
+	TailOnly      bool        `json:"tail_only"`
 	Params        []Param     `json:"params"`
 	Correlation   [][]Num     `json:"correlation"`
 	Budgets       []Budget    `json:"budgets"`
@@ -72,6 +122,8 @@ type Param struct {
 
 // Budget is an uncertainty budget (see edge.Budget).
 type Budget struct {
+	// Name is the parameter's name ("eg", "amp", "eu", …) or "ep".
+	Name     string `json:"name"`
 	Quantity string `json:"quantity"`
 	Unit     string `json:"unit"`
 	Terms    []Term `json:"terms"`
@@ -79,6 +131,10 @@ type Budget struct {
 	K        Num    `json:"k"`
 	Expanded Num    `json:"expanded_u"`
 	Rule     string `json:"rule"`
+	// Dominant is the source of the largest term and DominantU its
+	// standard uncertainty ("" and null without terms).
+	Dominant  string `json:"dominant"`
+	DominantU Num    `json:"dominant_u"`
 }
 
 // Term is one budget line.
@@ -146,21 +202,94 @@ type Conversion struct {
 	Notes           []string       `json:"notes"`
 }
 
-// Provenance records what produced a record, so it can be reproduced.
+// Provenance records what produced a record, so it can be reproduced:
+// the tool, its version and build (Go version, platform), the time, the
+// model and tail that were fitted, and every setting that affects the
+// numbers (the command line's analysis flags with the sample sheet's
+// overrides) with their SHA-256 digest.
 type Provenance struct {
-	Schema    int           `json:"schema"`
-	Tool      string        `json:"tool"`
-	Version   string        `json:"version"`
-	GoVersion string        `json:"go_version"`
-	Platform  string        `json:"platform"`
-	Time      string        `json:"time"`
-	Settings  scan.Settings `json:"settings"`
+	Schema    int    `json:"schema"`
+	Tool      string `json:"tool"`
+	Version   string `json:"version"`
+	GoVersion string `json:"go_version"`
+	Platform  string `json:"platform"`
+	Time      string `json:"time"`
+	// Model is the fitted model ("direct+urbach"; for --model auto the
+	// recommended candidate) and Tail its tail ("urbach", "none", …).
+	Model string `json:"model"`
+	Tail  string `json:"tail"`
+	// Settings are the analysis settings; SettingsSHA256 is the hex
+	// SHA-256 of their JSON encoding (SettingsDigest).
+	Settings       scan.Settings `json:"settings"`
+	SettingsSHA256 string        `json:"settings_sha256"`
 }
 
-// NewProvenance returns the provenance for settings s at time t.
+// NewProvenance returns the provenance for settings s at time t. The
+// model and tail are filled in by FromOutcome.
 func NewProvenance(version string, s scan.Settings, t time.Time) Provenance {
 	return Provenance{Schema: SchemaVersion, Tool: "bandedge", Version: version, GoVersion: runtime.Version(),
-		Platform: runtime.GOOS + "/" + runtime.GOARCH, Time: t.UTC().Format(time.RFC3339), Settings: s}
+		Platform: runtime.GOOS + "/" + runtime.GOARCH, Time: t.UTC().Format(time.RFC3339), Settings: s,
+		SettingsSHA256: SettingsDigest(s)}
+}
+
+// SettingsDigest returns the hex SHA-256 of the JSON encoding of s: two
+// settings with the same digest give the same numbers on the same build.
+// (The column choices enter through Settings.Columns, the text they are
+// parsed from.)
+func SettingsDigest(s scan.Settings) string {
+	b, err := json.Marshal(s)
+	if err != nil {
+		// Settings hold finite numbers and strings only (the flags
+		// reject the rest); a NaN would make it fail.
+		return ""
+	}
+	sum := sha256.Sum256(b)
+	return hex.EncodeToString(sum[:])
+}
+
+// AnalysisSettings returns the settings recorded in p as Analyze takes
+// them: the column choices, which JSON keeps only as the --columns text,
+// are parsed back from it.
+func (p Provenance) AnalysisSettings() (scan.Settings, error) {
+	s := p.Settings
+	if s.Columns != "" {
+		var err error
+		if s.XColumn, s.YColumn, s.RColumn, err = specio.ParseColumns(s.Columns); err != nil {
+			return s, fmt.Errorf("recorded columns %q: %w", s.Columns, err)
+		}
+	}
+	return s, nil
+}
+
+// Short is the short form of the provenance for a report's footer: tool
+// and version, platform, model, the first 12 hex digits of the settings
+// digest and of the input's SHA-256 (when given), and the time.
+func (p Provenance) Short(inputSHA256 string) string {
+	parts := []string{p.Tool + " " + p.Version, p.Platform}
+	if p.Model != "" {
+		parts = append(parts, "model "+p.Model)
+	}
+	if len(p.SettingsSHA256) >= 12 {
+		parts = append(parts, "settings "+p.SettingsSHA256[:12])
+	}
+	if len(inputSHA256) >= 12 {
+		parts = append(parts, "input sha256 "+inputSHA256[:12]+"…")
+	}
+	parts = append(parts, p.Time)
+	return strings.Join(parts, " · ")
+}
+
+// ReadRecord reads a result record written by WriteJSON (at most 64 MiB).
+func ReadRecord(r io.Reader, name string) (*Record, error) {
+	var rec Record
+	dec := json.NewDecoder(io.LimitReader(r, 64<<20))
+	if err := dec.Decode(&rec); err != nil {
+		return nil, fmt.Errorf("read %s: %w", name, err)
+	}
+	if rec.Provenance.Tool != "bandedge" {
+		return nil, fmt.Errorf("read %s: not a bandedge result record", name)
+	}
+	return &rec, nil
 }
 
 // FromOutcome builds the record of an analysed scan.
@@ -171,8 +300,13 @@ func FromOutcome(o *scan.Outcome, prov Provenance) *Record {
 		Chi2Reduced: Num(res.Chi2Red), PointsUsed: res.Points,
 		WindowEV:   [2]Num{Num(res.Window[0]), Num(res.Window[1])},
 		Warnings:   append([]string{}, res.Warnings...),
-		WindowRule: res.WindowRule, Converged: res.Converged, Status: res.Status,
+		Issues:     Issues(res),
+		WindowRule: res.WindowRule, Converged: res.Converged, Status: res.Status, TailOnly: res.TailOnly,
 		Provenance: prov,
+	}
+	r.Provenance.Model = res.Model
+	if _, tail, _, err := model.ParseName(res.Model); err == nil {
+		r.Provenance.Tail = tail
 	}
 	for _, p := range res.Params {
 		r.Params = append(r.Params, Param{Name: p.Name, Symbol: p.Symbol, Unit: p.Unit, Value: Num(p.Value),
@@ -182,7 +316,7 @@ func FromOutcome(o *scan.Outcome, prov Provenance) *Record {
 		r.Correlation = append(r.Correlation, nums(row))
 	}
 	for _, key := range res.BudgetKeys() {
-		r.Budgets = append(r.Budgets, budget(res.Budgets[key]))
+		r.Budgets = append(r.Budgets, budget(key, res.Budgets[key]))
 	}
 	if p, ok := res.Param("eg"); ok {
 		b := res.Budgets["eg"]
@@ -237,8 +371,12 @@ func comparison(c *edge.Comparison) *Comparison {
 	return out
 }
 
-func budget(b edge.Budget) Budget {
-	out := Budget{Quantity: b.Quantity, Unit: b.Unit, Combined: Num(b.Combined), K: Num(b.K), Expanded: Num(b.Expanded), Rule: b.Rule}
+func budget(name string, b edge.Budget) Budget {
+	out := Budget{Name: name, Quantity: b.Quantity, Unit: b.Unit, Combined: Num(b.Combined), K: Num(b.K), Expanded: Num(b.Expanded),
+		Rule: b.Rule, DominantU: Num(math.NaN())}
+	if d := b.Dominant(); len(d) > 0 {
+		out.Dominant, out.DominantU = d[0].Source, Num(d[0].U)
+	}
 	for _, t := range b.Terms {
 		out.Terms = append(out.Terms, Term{Source: t.Source, Type: t.Type, Input: Num(t.Input), InputUnit: t.InputUnit,
 			Sensitivity: Num(t.Sensitivity), U: Num(t.U), Note: t.Note})
@@ -279,6 +417,52 @@ func conversion(o *scan.Outcome) Conversion {
 		}
 	}
 	return cv
+}
+
+// IssueText says in words what the record's issues mean for its numbers
+// ("" without issues), e.g. "the fit did not converge (IterationLimit):
+// its numbers are the last iterate, not an estimate".
+func (r *Record) IssueText() string {
+	var parts []string
+	for _, is := range r.Issues {
+		switch is {
+		case IssueNotConverged:
+			parts = append(parts, fmt.Sprintf("the fit did not converge (%s): its numbers are the last iterate, not an estimate", r.Status))
+		case IssueSingular:
+			parts = append(parts, "the covariance could not be computed: the numbers have no statistical uncertainty")
+		case IssueAtBound:
+			var names []string
+			for _, p := range r.Params {
+				if p.AtBound {
+					names = append(names, p.Symbol)
+				}
+			}
+			parts = append(parts, fmt.Sprintf("%s ended on its bound: the optimum may lie outside the model's range and the interval is not meaningful", strings.Join(names, ", ")))
+		default:
+			parts = append(parts, is)
+		}
+	}
+	return strings.Join(parts, "; ")
+}
+
+// Budget returns the budget of the parameter (or "ep") called name.
+func (r *Record) Budget(name string) (Budget, bool) {
+	for _, b := range r.Budgets {
+		if b.Name == name {
+			return b, true
+		}
+	}
+	return Budget{}, false
+}
+
+// Term returns the term of b from source and whether it exists.
+func (b Budget) Term(source string) (Term, bool) {
+	for _, t := range b.Terms {
+		if t.Source == source {
+			return t, true
+		}
+	}
+	return Term{}, false
 }
 
 // WriteJSON writes v as indented JSON followed by a newline.

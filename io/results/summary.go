@@ -18,11 +18,23 @@ const SummarySchema = 1
 
 // Scan statuses of a summary row.
 const (
-	StatusOK           = "ok"            // fitted and converged
-	StatusNotConverged = "not_converged" // fitted, but the solver stopped early: numbers are not estimates
-	StatusFailed       = "failed"        // could not be read, converted or fitted
-	StatusCancelled    = "cancelled"     // not analysed: the batch was interrupted
+	StatusOK           = "ok"              // fitted and converged, with a covariance, no parameter on a bound
+	StatusNotConverged = IssueNotConverged // fitted, but the solver stopped early: numbers are not estimates
+	StatusSingular     = IssueSingular     // fitted, but the covariance could not be computed: no statistical uncertainty
+	StatusAtBound      = IssueAtBound      // fitted, but a parameter ended on its bound: the interval is not meaningful
+	StatusFailed       = "failed"          // could not be read, converted or fitted
+	StatusCancelled    = "cancelled"       // not analysed: the batch was interrupted
 )
+
+// Fitted reports whether a status is that of a scan whose fit ran (ok,
+// or with an issue), as against one that failed or was not analysed.
+func Fitted(status string) bool {
+	switch status {
+	case StatusOK, StatusNotConverged, StatusSingular, StatusAtBound:
+		return true
+	}
+	return false
+}
 
 // Row is one scan of a batch summary: where it came from, how it ended, every
 // fitted quantity with its combined standard uncertainty u_c (the *_err
@@ -87,6 +99,11 @@ type Row struct {
 
 	// Extra are the sample sheet's unknown columns, passed through.
 	Extra []Column `json:"extra"`
+
+	// Provenance is the provenance of the scan's record: tool version,
+	// build, time of the analysis, model and tail, and the settings it was
+	// analysed with (nil for a scan that was not fitted).
+	Provenance *Provenance `json:"provenance"`
 }
 
 // LimitVerdict is the verdict of one limit.
@@ -110,52 +127,59 @@ func NewRow(file string) Row {
 		ThicknessCM: n, Index: n, TemperatureK: n, Warnings: []string{}, Verdicts: []LimitVerdict{}, Extra: []Column{}}
 }
 
-// RowFromOutcome fills a row's fit fields from an analysed scan and its
-// record (built from the same result by FromOutcome, so the numbers are
-// the record's). The identification and verdict fields are left to the
-// caller.
-func RowFromOutcome(o *scan.Outcome, rec *Record) Row {
+// RowFromOutcome fills a row's fit fields from an analysed scan's record
+// (built from o.Result by FromOutcome): it is RowFromRecord(rec), kept so
+// that callers holding the outcome need not know that the row depends on
+// the record alone.
+func RowFromOutcome(_ *scan.Outcome, rec *Record) Row { return RowFromRecord(rec) }
+
+// RowFromRecord fills a row's fit fields from a result record alone, so
+// that a record read back from its file (batch --resume) gives the same
+// row as the analysis that wrote it. The status is the record's first
+// issue, StatusOK without one. The identification and verdict fields are
+// left to the caller.
+func RowFromRecord(rec *Record) Row {
 	r := NewRow(rec.File)
-	res := o.Result
 	r.SHA256, r.Model = rec.SHA256, rec.Model
 	r.Status = StatusOK
-	if !res.Converged {
-		r.Status = StatusNotConverged
+	if len(rec.Issues) > 0 {
+		r.Status = rec.Issues[0]
 	}
-	r.Converged = res.Converged
-	r.EgDetermined = !res.TailOnly
+	r.Converged = rec.Converged
+	r.EgDetermined = !rec.TailOnly
 	r.EgEV, r.EgErrEV, r.EgExpandedEV, r.EgStatErrEV = rec.EgEV, rec.EgErrEV, rec.EgExpandedEV, rec.EgStatErrEV
 	r.CoverageK = rec.CoverageK
-	if b, ok := res.Budgets["eg"]; ok {
-		if d := b.Dominant(); len(d) > 0 {
-			r.EgDominant, r.EgDominantU = d[0].Source, Num(d[0].U)
-		}
+	if b, ok := rec.Budget("eg"); ok {
+		r.EgDominant, r.EgDominantU = b.Dominant, b.DominantU
 	}
 	if rec.UrbachEV != nil {
 		r.UrbachEV, r.UrbachErrEV = *rec.UrbachEV, *rec.UrbachErrEV
-		r.UrbachExpandedEV = Num(res.Budgets["eu"].Expanded)
+		if b, ok := rec.Budget("eu"); ok {
+			r.UrbachExpandedEV = b.Expanded
+		}
 	}
 	r.Amplitude, r.AmplitudeErr = rec.Amplitude, rec.AmplitudeErr
-	if b, ok := res.Budgets["amp"]; ok {
-		r.AmplitudeExpanded = Num(b.Expanded)
+	if b, ok := rec.Budget("amp"); ok {
+		r.AmplitudeExpanded = b.Expanded
 	}
 	if rec.EPEV != nil {
 		r.EPEV, r.EPErrEV = *rec.EPEV, *rec.EPErrEV
-		r.EPExpandedEV = Num(res.Budgets["ep"].Expanded)
+		if b, ok := rec.Budget("ep"); ok {
+			r.EPExpandedEV = b.Expanded
+		}
 	}
-	if res.TailOnly {
+	if rec.TailOnly {
 		// Not determined: the extrapolated values stay in the record only.
 		nan := Num(math.NaN())
 		r.EgEV, r.Amplitude, r.EPEV = nan, nan, nan
 	}
 	r.Chi2Reduced, r.PointsUsed, r.WindowEV = rec.Chi2Reduced, rec.PointsUsed, rec.WindowEV
 	r.Warnings = append([]string{}, rec.Warnings...)
-	r.ThicknessCM = Num(math.NaN())
-	if !o.Conversion.RelativeWeights {
-		r.ThicknessCM = Num(o.Settings.Thickness)
-	}
-	if o.Settings.Index > 0 {
-		r.Index = Num(o.Settings.Index)
+	prov := rec.Provenance
+	r.Provenance = &prov
+	r.ThicknessCM = rec.Conversion.ThicknessCM
+	if ix := rec.Provenance.Settings.Index; ix > 0 {
+		r.Index = Num(ix)
 	}
 	return r
 }
@@ -190,7 +214,7 @@ func (r *Row) Value(q string) (float64, bool) {
 		v = r.Chi2Reduced
 	case "points_used":
 		v = Num(r.PointsUsed)
-		if r.Status != StatusOK && r.Status != StatusNotConverged {
+		if !Fitted(r.Status) {
 			v = Num(math.NaN())
 		}
 	default:
@@ -202,13 +226,21 @@ func (r *Row) Value(q string) (float64, bool) {
 // Summary is the content of summary.json: the batch, its settings and
 // decision rule, and one row per scan in input order.
 type Summary struct {
-	Schema  int    `json:"schema"`
-	Tool    string `json:"tool"`
-	Version string `json:"version"`
-	Time    string `json:"time"`
+	Schema    int    `json:"schema"`
+	Tool      string `json:"tool"`
+	Version   string `json:"version"`
+	GoVersion string `json:"go_version"`
+	Platform  string `json:"platform"`
+	Time      string `json:"time"`
 	// Settings are the command-line analysis settings (a sample sheet may
-	// override thickness and index per scan; the rows say what was used).
-	Settings scan.Settings `json:"settings"`
+	// override thickness and index per scan; each row's provenance holds
+	// the settings it was analysed with); SettingsSHA256 is their digest
+	// (SettingsDigest), Model and Tail the model they name ("auto" for a
+	// comparison, whose rows name the model each scan kept).
+	Settings       scan.Settings `json:"settings"`
+	SettingsSHA256 string        `json:"settings_sha256"`
+	Model          string        `json:"model"`
+	Tail           string        `json:"tail"`
 	// Samples and SpecFile are the sample sheet and spec file ("" if none).
 	Samples  string `json:"samples"`
 	SpecFile string `json:"spec_file"`
@@ -220,7 +252,31 @@ type Summary struct {
 	Counts       Counts       `json:"counts"`
 	// ExtraColumns are the pass-through sheet columns, in order.
 	ExtraColumns []string `json:"extra_columns"`
-	Rows         []Row    `json:"scans"`
+	// Resume says what batch --resume reused and refitted (nil for a run
+	// without --resume).
+	Resume *Resume `json:"resume,omitempty"`
+	Rows   []Row   `json:"scans"`
+}
+
+// Resume is what batch --resume did with the results of an earlier run.
+type Resume struct {
+	// Reused counts the scans taken from their earlier record (same input
+	// SHA-256, same settings, same tool version and schema); New those
+	// without an earlier record.
+	Reused int `json:"reused"`
+	New    int `json:"new"`
+	// Refitted lists the scans that had an earlier record but were
+	// analysed again, with the reason (the file or the settings changed).
+	Refitted []Refit `json:"refitted"`
+	// StaleRemoved counts the temporary files of interrupted writes that
+	// were removed before the run.
+	StaleRemoved int `json:"stale_temporary_files_removed"`
+}
+
+// Refit is a scan analysed again by --resume, and why.
+type Refit struct {
+	File   string `json:"file"`
+	Reason string `json:"reason"`
 }
 
 // LimitBound is a limit as written in the spec (NaN: no bound; null in
@@ -236,6 +292,8 @@ type Counts struct {
 	Scans         int `json:"scans"`
 	OK            int `json:"ok"`
 	NotConverged  int `json:"not_converged"`
+	Singular      int `json:"singular_covariance"`
+	AtBound       int `json:"at_bound"`
 	Failed        int `json:"failed"`
 	Cancelled     int `json:"cancelled"`
 	Pass          int `json:"pass"`
@@ -292,7 +350,7 @@ var summaryColumns = []struct {
 	{"coverage_k", func(r *Row) string { return cell(r.CoverageK) }},
 	{"chi2_reduced", func(r *Row) string { return cell(r.Chi2Reduced) }},
 	{"points_used", func(r *Row) string {
-		if r.Status != StatusOK && r.Status != StatusNotConverged {
+		if !Fitted(r.Status) {
 			return ""
 		}
 		return strconv.Itoa(r.PointsUsed)
@@ -307,7 +365,7 @@ var summaryColumns = []struct {
 }
 
 func boolCell(r *Row, b bool) string {
-	if r.Status != StatusOK && r.Status != StatusNotConverged {
+	if !Fitted(r.Status) {
 		return ""
 	}
 	return strconv.FormatBool(b)
@@ -343,6 +401,7 @@ func WriteSummaryCSV(w io.Writer, s *Summary) error {
 		}
 	}
 	header = append(header, "decision_rule", "warnings", "error", "result_file", "report_file")
+	header = append(header, provenanceColumns...)
 	for _, h := range header {
 		taken[h] = true
 	}
@@ -375,6 +434,7 @@ func WriteSummaryCSV(w io.Writer, s *Summary) error {
 			rule = ""
 		}
 		rec = append(rec, rule, strings.Join(r.Warnings, " | "), r.Error, r.ResultFile, r.ReportFile)
+		rec = append(rec, provenanceCells(r.Provenance)...)
 		for _, x := range s.ExtraColumns {
 			v := ""
 			for _, c := range r.Extra {
@@ -393,8 +453,26 @@ func WriteSummaryCSV(w io.Writer, s *Summary) error {
 	return cw.Error()
 }
 
+// provenanceColumns are the provenance columns of summary.csv, after
+// report_file: the tool version, the time of the analysis, the fitted
+// model's tail, the settings' digest and the settings as compact JSON
+// (empty for a scan that was not fitted).
+var provenanceColumns = []string{"tool_version", "analysed_at", "tail", "settings_sha256", "settings"}
+
+func provenanceCells(p *Provenance) []string {
+	if p == nil {
+		return make([]string, len(provenanceColumns))
+	}
+	b, err := json.Marshal(p.Settings)
+	if err != nil {
+		b = nil
+	}
+	return []string{p.Tool + " " + p.Version, p.Time, p.Tail, p.SettingsSHA256, string(b)}
+}
+
 // WriteFailures writes failures.txt: one line per scan that could not be
-// fitted (failed, not converged or cancelled), the one-line reason naming
+// fitted or whose fit has an issue (failed, not converged, singular
+// covariance, on a bound, or cancelled), the one-line reason naming
 // the file (and the line, for a parse error), in input order. With no
 // failure the file is empty.
 func WriteFailures(w io.Writer, rows []Row) error {
@@ -421,12 +499,16 @@ func oneLine(s string) string {
 // Rollup is the content of rollup.json: per-wafer and per-lot statistics
 // and verdicts.
 type Rollup struct {
-	Schema       int        `json:"schema"`
-	Tool         string     `json:"tool"`
-	Version      string     `json:"version"`
-	Time         string     `json:"time"`
-	DecisionRule string     `json:"decision_rule"`
-	Groups       []GroupRow `json:"groups"`
+	Schema   int    `json:"schema"`
+	Tool     string `json:"tool"`
+	Version  string `json:"version"`
+	Platform string `json:"platform"`
+	Time     string `json:"time"`
+	// SettingsSHA256 is the digest of the command-line analysis settings
+	// (the summary holds them).
+	SettingsSHA256 string     `json:"settings_sha256"`
+	DecisionRule   string     `json:"decision_rule"`
+	Groups         []GroupRow `json:"groups"`
 }
 
 // GroupRow is one wafer or one lot.
