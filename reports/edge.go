@@ -46,7 +46,8 @@ type EdgePage struct {
 
 // EdgeFigure builds the edge report: α(E) on a log axis with the data
 // inside the window, outside it and masked told apart by marker; the
-// normalised residuals (α − f)/σ under it on the same energy axis; the
+// fit's normalised residuals under it on the same energy axis (in the
+// space of the fit: (T − T_fit)/σ_T or (α − α_fit)/σ_α); the
 // (αE)² view with the fitted gap and the band's asymptote; and a block with
 // the results, their uncertainty budgets, the input and the warnings.
 func EdgeFigure(r EdgeReport) (*EdgePage, error) {
@@ -60,8 +61,15 @@ func EdgeFigure(r EdgeReport) (*EdgePage, error) {
 	// Split points by role.
 	var inW, outW, masked, resid plotter.XYs
 	var tIn, tOut plotter.XYs
-	f := make([]float64, len(d.E))
-	r.Model.Eval(f, d.E, res.Fit.Params)
+	// The residuals are the fit's own, normalised, in the space it was
+	// fitted in (transmittance for T and absorbance input, α for α
+	// input), so that what the panel shows is what χ² counts.
+	fr := edge.FitResiduals(d, r.Model, res.Fit.Params, res.InWindow)
+	for i, e := range d.E {
+		if e >= xr[0] && e <= xr[1] && !math.IsNaN(fr[i]) {
+			resid = append(resid, plotter.XY{X: e, Y: fr[i]})
+		}
+	}
 	for i, e := range d.E {
 		if e < xr[0] || e > xr[1] {
 			continue
@@ -72,15 +80,11 @@ func EdgeFigure(r EdgeReport) (*EdgePage, error) {
 		switch {
 		case !finite || a <= 0:
 			pg.dropped++
-			if usable && res.InWindow[i] {
-				resid = append(resid, plotter.XY{X: e, Y: (a - f[i]) / d.Sigma[i]})
-			}
 			continue
 		case !usable:
 			masked = append(masked, plotter.XY{X: e, Y: a})
 		case res.InWindow[i]:
 			inW = append(inW, plotter.XY{X: e, Y: a})
-			resid = append(resid, plotter.XY{X: e, Y: (a - f[i]) / d.Sigma[i]})
 			tIn = append(tIn, plotter.XY{X: e, Y: sq(a * e)})
 		default:
 			outW = append(outW, plotter.XY{X: e, Y: a})
@@ -144,7 +148,10 @@ func EdgeFigure(r EdgeReport) (*EdgePage, error) {
 	// Residual panel.
 	pr := newPlot()
 	pr.X.Label.Text = "E (eV)"
-	pr.Y.Label.Text = "(α − fit)/σ"
+	pr.Y.Label.Text = "(α − fit)/σ_α"
+	if res.Space == edge.SpaceTransmittance {
+		pr.Y.Label.Text = "(T − fit)/σ_T"
+	}
 	pr.X.Min, pr.X.Max = xr[0], xr[1]
 	lim := 3.0
 	for _, p := range resid {
@@ -277,9 +284,7 @@ func resultLines(r EdgeReport, dropped int) (left, right []styledLine) {
 	} else if ok {
 		eg := paramValue(res, "eg")
 		add(b, 0, "E_g = %s   (U, k = %g)", valueWithU(eg, bg.Expanded, "eV"), bg.K)
-		for i, l := range wrap(fmt.Sprintf("u_c = %.2g eV; largest terms: %s", bg.Combined, budgetText(bg)), 84) {
-			add(s, vg.Length(12+8*min(i, 1)), "%s", l)
-		}
+		add(s, 12, "u_c = %.2g eV; largest terms: %s", bg.Combined, budgetText(bg))
 	}
 	if bu, ok := res.Budgets["eu"]; ok {
 		eu := paramValue(res, "eu")
@@ -290,9 +295,7 @@ func resultLines(r EdgeReport, dropped int) (left, right []styledLine) {
 	}
 	if be, ok := res.Budgets["ep"]; ok {
 		add(n, 0, "E_P = %s   (U, k = %g)", valueWithU(res.EP, be.Expanded, "eV"), be.K)
-		for i, l := range wrap("largest terms: "+budgetText(be), 84) {
-			add(s, vg.Length(12+8*min(i, 1)), "%s", l)
-		}
+		add(s, 12, "largest terms: %s", budgetText(be))
 	}
 	add(n, 0, "χ²_red = %.3g   points %d   window %.4f–%.4f eV", res.Chi2Red, res.Points, res.Window[0], res.Window[1])
 	add(s, 12, "%s", res.WindowRule)
@@ -310,9 +313,7 @@ func resultLines(r EdgeReport, dropped int) (left, right []styledLine) {
 		}
 	}
 	for _, l := range r.InputLines {
-		for i, part := range wrap(l, 84) {
-			add(s, vg.Length(8*min(i, 1)), "%s", part)
-		}
+		add(s, 0, "%s", l)
 	}
 	if dropped > 0 {
 		add(s, 0, "%d points with α ≤ 0 or undefined are not drawn on the log axes", dropped)
@@ -322,13 +323,7 @@ func resultLines(r EdgeReport, dropped int) (left, right []styledLine) {
 	} else {
 		add(b, 0, "Warnings")
 		for _, w := range res.Warnings {
-			for i, l := range wrap(w, 72) {
-				ind := vg.Length(6)
-				if i > 0 {
-					ind = 14
-				}
-				add(s, ind, "%s%s", map[bool]string{true: "• ", false: ""}[i == 0], l)
-			}
+			add(s, 6, "• %s", w) // textBlock wraps it, continued 8 points in
 		}
 	}
 	return nil, right

@@ -16,6 +16,7 @@ import (
 	"image/color"
 	"image/png"
 	"io"
+	"strings"
 	"sync"
 
 	"gonum.org/v1/plot/vg"
@@ -137,14 +138,53 @@ func textStyle(size vg.Length, bold bool) draw.TextStyle {
 }
 
 // textBlock draws lines top-down from pt and returns the y below the last.
+//
+// A line wider than the room left of c.Max.X is broken at spaces, as
+// measured in its own font, and continued 8 points further in, so that no
+// text runs off the page whatever the length of a file name, a window rule
+// or a warning.
 func textBlock(c draw.Canvas, pt vg.Point, lines []styledLine) vg.Length {
 	y := pt.Y
 	for _, l := range lines {
 		st := l.style
-		c.FillText(st, vg.Point{X: pt.X + l.indent, Y: y}, l.text)
-		y -= st.Font.Size * 1.35
+		for i, part := range fitWidth(st, l.text, c.Max.X-pt.X-l.indent, 8) {
+			ind := l.indent
+			if i > 0 {
+				ind += 8
+			}
+			c.FillText(st, vg.Point{X: pt.X + ind, Y: y}, part)
+			y -= st.Font.Size * 1.35
+		}
 	}
 	return y
+}
+
+// fitWidth breaks s at spaces into lines no wider than width in style st,
+// the lines after the first being extra narrower; a single word wider than
+// the room stays whole on its line.
+func fitWidth(st draw.TextStyle, s string, width, extra vg.Length) []string {
+	if width <= 0 || st.Width(s) <= width {
+		return []string{s}
+	}
+	var out []string
+	cur := ""
+	room := width
+	for _, w := range strings.Fields(s) {
+		try := w
+		if cur != "" {
+			try = cur + " " + w
+		}
+		if cur != "" && st.Width(try) > room {
+			out = append(out, cur)
+			cur, room = w, width-extra
+			continue
+		}
+		cur = try
+	}
+	if cur != "" {
+		out = append(out, cur)
+	}
+	return out
 }
 
 type styledLine struct {

@@ -251,8 +251,12 @@ func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
 		}
 	}
 	if d.tSpace() {
-		res.WindowRule += fmt.Sprintf("; fitted in transmittance, leaving out the points whose absorbance predicted by the fit exceeds %g (%d)",
-			d.Transmission.maxAbsorbance(), res.FloorExcluded)
+		if res.FloorExcluded == 0 {
+			res.WindowRule += fmt.Sprintf("; fitted in transmittance (no window point beyond the absorbance floor %g)", d.Transmission.maxAbsorbance())
+		} else {
+			res.WindowRule += fmt.Sprintf("; fitted in transmittance, %d window points left out where the fitted absorbance exceeds the floor %g",
+				res.FloorExcluded, d.Transmission.maxAbsorbance())
+		}
 	}
 	if err != nil && (fr == nil || !errors.Is(err, fit.ErrSingular)) {
 		return nil, err

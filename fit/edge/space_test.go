@@ -2,6 +2,7 @@ package edge_test
 
 import (
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -60,6 +61,58 @@ func TestConvertSpace(t *testing.T) {
 				if !scalar.EqualWithinRel(tr.T[i], sc.T[i], 1e-12) || !scalar.EqualWithinAbs(tr.R[i], 0.31947, 5e-6) {
 					t.Fatalf("point %d: T %v (want %v), R %v", i, tr.T[i], sc.T[i], tr.R[i])
 				}
+			}
+		})
+	}
+}
+
+// TestFitResidualsAreTheFits: the residuals a report draws are the fit's
+// own: in both spaces their sum of squares is the SSR the solver reports,
+// they are NaN exactly off the fitted points, and there is one per fitted
+// point (in transmittance space including points whose α is undefined).
+func TestFitResidualsAreTheFits(t *testing.T) {
+	e := synth.WavelengthGrid(700, 1000, 1)
+	sc := synth.Transmittance(synth.Spec{Model: model.DirectUrbach{}, Params: honestyTruth(), E: e, Thickness: 2e-4,
+		R: optics.FresnelR(3.6, 0), SigmaT: 0.002}, rand.New(rand.NewPCG(7, 7)))
+	set := scan.Settings{Thickness: 2e-4, TNoise: 0.002, Index: 3.6}
+	for _, tc := range []struct {
+		name string
+		kind specio.YKind
+		y    []float64
+	}{
+		{"transmittance", specio.Transmittance, sc.T},
+		{"alpha", specio.Alpha, sc.Alpha},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			d, _, _, err := scan.Convert(&specio.Spectrum{E: e, Y: tc.y, Kind: tc.kind}, set, set.Index)
+			if err != nil {
+				t.Fatal(err)
+			}
+			res, err := edge.Analyze(t.Context(), d, edge.Options{NoWindowBudget: true})
+			if err != nil {
+				t.Fatal(err)
+			}
+			m, err := model.LookupConfig(res.Model, model.Config{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			r := edge.FitResiduals(d, m, res.Fit.Params, res.InWindow)
+			ssr, n := 0.0, 0
+			for i, v := range r {
+				if res.InWindow[i] == math.IsNaN(v) {
+					t.Fatalf("point %d: in the fit %v, residual %v", i, res.InWindow[i], v)
+				}
+				if res.InWindow[i] {
+					ssr += v * v
+					n++
+				}
+			}
+			if n != res.Points {
+				t.Errorf("%d residuals, %d points in the fit", n, res.Points)
+			}
+			// 1e-9: the same residual function summed in another order.
+			if !scalar.EqualWithinRel(ssr, res.Fit.SSR, 1e-9) {
+				t.Errorf("Σr² = %.12g, fit SSR %.12g", ssr, res.Fit.SSR)
 			}
 		})
 	}

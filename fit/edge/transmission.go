@@ -306,3 +306,28 @@ func newProblem(d Data, m model.Model, in []bool) problem {
 	}
 	return problem{f: f, set: &fit.Settings{AbsoluteSigma: d.SigmaKnown}}
 }
+
+// FitResiduals returns, for every point of d, the normalised residual of
+// the fit of m at p in d's space (what the fit minimised the squares of):
+// (T_i − T_slab(α(E_i; p)))/σ_T in transmittance space, (α_i − α(E_i;
+// p))/σ_i in α space; NaN at the points not marked in.
+func FitResiduals(d Data, m model.Model, p []float64, in []bool) []float64 {
+	out := make([]float64, len(d.E))
+	for i := range out {
+		out[i] = math.NaN()
+	}
+	pr := newProblem(d, m, in)
+	if pr.f.M == 0 {
+		return out
+	}
+	r := make([]float64, pr.f.M)
+	pr.f.Residuals(r, p)
+	k := 0
+	for i, ok := range in {
+		if ok {
+			out[i] = r[k]
+			k++
+		}
+	}
+	return out
+}

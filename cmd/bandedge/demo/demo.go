@@ -94,7 +94,7 @@ func Scans() []Scan {
 			File: "KM2611-W04-edge.txt", Style: "semicolon-separated, decimal comma, wavelength (nm) ascending, %T",
 			Truth: []float64{1.4268, c, 0.0091}, Settings: with(1.8, 0.04),
 			Flags: "--thickness 1.8um --thickness-err 0.04um " + common,
-			Note:  "an edge site with a weak sub-gap defect background (60 cm⁻¹) the model lacks: watch the window term",
+			Note:  "an edge site with a weak sub-gap defect background (60 cm⁻¹) the model lacks: the χ² test flags the misfit and suggests a baseline",
 			write: func(w io.Writer, rng *rand.Rand) error {
 				e, t := transmission(1.4268, c, 0.0091, 1.8e-4, func(float64) float64 { return 60 }, 700, 1000, 1, rng)
 				nm, pt := descendingNM(e, t, 100)
