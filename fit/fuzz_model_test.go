@@ -1,13 +1,13 @@
 package fit_test
 
 import (
+	"bandedge/io/fuzzguard"
 	"context"
 	"encoding/binary"
 	"errors"
 	"math"
 	"os"
 	"path/filepath"
-	"runtime/metrics"
 	"slices"
 	"strconv"
 	"strings"
@@ -28,33 +28,6 @@ const (
 	// TotalAlloc): a fit of 256 points allocates a few MiB.
 	fuzzMaxAlloc = 512 << 20
 )
-
-// fzBound runs f and fails the test if it does not return within d or
-// allocates more than maxAlloc bytes on the heap (runtime/metrics
-// /gc/heap/allocs:bytes, cheap enough to read for every input). A panic
-// in f crashes the fuzz worker, which the fuzzer reports with the input.
-func fzBound(t *testing.T, d time.Duration, maxAlloc uint64, what string, f func()) {
-	t.Helper()
-	sample := []metrics.Sample{{Name: "/gc/heap/allocs:bytes"}}
-	metrics.Read(sample)
-	before := sample[0].Value.Uint64()
-	done := make(chan struct{})
-	go func() {
-		defer close(done)
-		f()
-	}()
-	timer := time.NewTimer(d)
-	defer timer.Stop()
-	select {
-	case <-done:
-	case <-timer.C:
-		t.Fatalf("%s did not return within %v", what, d)
-	}
-	metrics.Read(sample)
-	if a := sample[0].Value.Uint64() - before; a > maxAlloc {
-		t.Fatalf("%s allocated %d bytes (limit %d)", what, a, maxAlloc)
-	}
-}
 
 // fuzzModels are the registry's models the fuzzer picks from: every
 // band+tail of model.Names (the indirect band at 300 K), and two with a
@@ -140,7 +113,7 @@ func FuzzFitModel(f *testing.F) {
 		}
 		var res *fit.Result
 		var err error
-		fzBound(t, fuzzDeadline, fuzzMaxAlloc, "Fit("+m.Name()+")", func() {
+		fuzzguard.Bound(t, fuzzDeadline, fuzzMaxAlloc, "Fit("+m.Name()+")", func() {
 			res, err = fit.Fit(context.Background(), fit.Problem{E: e, Alpha: a, Weights: w, Model: m, Init: init}, nil)
 		})
 		if res == nil {

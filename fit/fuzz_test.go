@@ -1,6 +1,8 @@
 package fit_test
 
 import (
+	"bandedge/io/fuzzguard"
+
 	"context"
 	"encoding/binary"
 	"errors"
@@ -58,7 +60,7 @@ func FuzzFit(f *testing.F) {
 		for _, m := range []model.Model{bounded, misra1aFD{bounded}} {
 			var res *fit.Result
 			var err error
-			fzBound(t, fuzzDeadline, fuzzMaxAlloc, "Fit", func() {
+			fuzzguard.Bound(t, fuzzDeadline, fuzzMaxAlloc, "Fit", func() {
 				res, err = fit.Fit(context.Background(), fit.Problem{E: e, Alpha: a, Weights: w, Model: m, Init: init},
 					&fit.Settings{MaxIterations: 50})
 			})

@@ -1,13 +1,13 @@
 package edge_test
 
 import (
+	"bandedge/io/fuzzguard"
 	"context"
 	"encoding/binary"
 	"errors"
 	"math"
 	"os"
 	"path/filepath"
-	"runtime/metrics"
 	"slices"
 	"strconv"
 	"strings"
@@ -28,33 +28,6 @@ const (
 	fzDeadline  = 2 * time.Minute
 	fzMaxAlloc  = 1 << 30
 )
-
-// fzBound runs f and fails the test if it does not return within d or
-// allocates more than maxAlloc bytes on the heap (runtime/metrics
-// /gc/heap/allocs:bytes, cheap enough to read for every input). A panic
-// in f crashes the fuzz worker, which the fuzzer reports with the input.
-func fzBound(t *testing.T, d time.Duration, maxAlloc uint64, what string, f func()) {
-	t.Helper()
-	sample := []metrics.Sample{{Name: "/gc/heap/allocs:bytes"}}
-	metrics.Read(sample)
-	before := sample[0].Value.Uint64()
-	done := make(chan struct{})
-	go func() {
-		defer close(done)
-		f()
-	}()
-	timer := time.NewTimer(d)
-	defer timer.Stop()
-	select {
-	case <-done:
-	case <-timer.C:
-		t.Fatalf("%s did not return within %v", what, d)
-	}
-	metrics.Read(sample)
-	if a := sample[0].Value.Uint64() - before; a > maxAlloc {
-		t.Fatalf("%s allocated %d bytes (limit %d)", what, a, maxAlloc)
-	}
-}
 
 // fzModels are the models FuzzAnalyze picks from (the indirect band at
 // 300 K).
@@ -185,7 +158,7 @@ func FuzzAnalyze(f *testing.F) {
 			o.Window = [2]float64{d.E[0], d.E[len(d.E)-1]}
 		}
 		var res *edge.Result
-		fzBound(t, fzDeadline, fzMaxAlloc, "Analyze("+m.Name()+")", func() {
+		fuzzguard.Bound(t, fzDeadline, fzMaxAlloc, "Analyze("+m.Name()+")", func() {
 			res, err = edge.Analyze(context.Background(), d, o)
 		})
 		if err != nil {

@@ -1,6 +1,7 @@
 package scan_test
 
 import (
+	"bandedge/io/fuzzguard"
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
@@ -8,7 +9,6 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"runtime/metrics"
 	"strings"
 	"testing"
 	"time"
@@ -28,33 +28,6 @@ const (
 	fzDeadline = 3 * time.Minute
 	fzMaxAlloc = 4 << 30
 )
-
-// fzBound runs f and fails the test if it does not return within d or
-// allocates more than maxAlloc bytes on the heap (runtime/metrics
-// /gc/heap/allocs:bytes, cheap enough to read for every input). A panic
-// in f crashes the fuzz worker, which the fuzzer reports with the input.
-func fzBound(t *testing.T, d time.Duration, maxAlloc uint64, what string, f func()) {
-	t.Helper()
-	sample := []metrics.Sample{{Name: "/gc/heap/allocs:bytes"}}
-	metrics.Read(sample)
-	before := sample[0].Value.Uint64()
-	done := make(chan struct{})
-	go func() {
-		defer close(done)
-		f()
-	}()
-	timer := time.NewTimer(d)
-	defer timer.Stop()
-	select {
-	case <-done:
-	case <-timer.C:
-		t.Fatalf("%s did not return within %v", what, d)
-	}
-	metrics.Read(sample)
-	if a := sample[0].Value.Uint64() - before; a > maxAlloc {
-		t.Fatalf("%s allocated %d bytes (limit %d)", what, a, maxAlloc)
-	}
-}
 
 // fzSettings are the settings FuzzAnalyze picks from: the batch test
 // lot's (2 µm, n = 3.6 with its uncertainty), a given noise, α input
@@ -118,7 +91,7 @@ func FuzzAnalyze(f *testing.F) {
 		s := fzSettings[int(sel)%len(fzSettings)]
 		var o *scan.Outcome
 		var err error
-		fzBound(t, fzDeadline, fzMaxAlloc, "Analyze", func() {
+		fuzzguard.Bound(t, fzDeadline, fzMaxAlloc, "Analyze", func() {
 			o, err = scan.Analyze(context.Background(), "dir/fuzz.csv", data, s)
 		})
 		if err != nil {

@@ -1,12 +1,12 @@
 package jcampdx
 
 import (
+	"bandedge/io/fuzzguard"
 	"bytes"
 	"errors"
 	"math"
 	"os"
 	"path/filepath"
-	"runtime/metrics"
 	"testing"
 	"time"
 
@@ -53,7 +53,7 @@ func FuzzRead(f *testing.F) {
 		}
 		var s *specio.Spectrum
 		var err error
-		fzBound(t, fzDeadline, fzMaxAlloc(len(data)), "Read", func() { s, err = r.Read() })
+		fuzzguard.Bound(t, fzDeadline, fzMaxAlloc(len(data)), "Read", func() { s, err = r.Read() })
 		if err != nil {
 			var pe *specio.ParseError
 			if !errors.As(err, &pe) {
@@ -97,30 +97,3 @@ func FuzzRead(f *testing.F) {
 const fzDeadline = 10 * time.Second
 
 func fzMaxAlloc(n int) uint64 { return 64<<20 + 512*uint64(n) }
-
-// fzBound runs f and fails the test if it does not return within d or
-// allocates more than maxAlloc bytes on the heap (runtime/metrics
-// /gc/heap/allocs:bytes, cheap enough to read for every input). A panic
-// in f crashes the fuzz worker, which the fuzzer reports with the input.
-func fzBound(t *testing.T, d time.Duration, maxAlloc uint64, what string, f func()) {
-	t.Helper()
-	sample := []metrics.Sample{{Name: "/gc/heap/allocs:bytes"}}
-	metrics.Read(sample)
-	before := sample[0].Value.Uint64()
-	done := make(chan struct{})
-	go func() {
-		defer close(done)
-		f()
-	}()
-	timer := time.NewTimer(d)
-	defer timer.Stop()
-	select {
-	case <-done:
-	case <-timer.C:
-		t.Fatalf("%s did not return within %v", what, d)
-	}
-	metrics.Read(sample)
-	if a := sample[0].Value.Uint64() - before; a > maxAlloc {
-		t.Fatalf("%s allocated %d bytes (limit %d)", what, a, maxAlloc)
-	}
-}

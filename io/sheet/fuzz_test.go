@@ -1,12 +1,12 @@
 package sheet
 
 import (
+	"bandedge/io/fuzzguard"
 	"bytes"
 	"errors"
 	"math"
 	"os"
 	"path/filepath"
-	"runtime/metrics"
 	"testing"
 	"time"
 
@@ -51,7 +51,7 @@ func FuzzReadSamples(f *testing.F) {
 	f.Fuzz(func(t *testing.T, data []byte) {
 		var s *Samples
 		var err error
-		fzBound(t, fzDeadline, fzMaxAlloc(len(data)), "ReadSamples", func() { s, err = ReadSamples(bytes.NewReader(data), "fuzz.csv") })
+		fuzzguard.Bound(t, fzDeadline, fzMaxAlloc(len(data)), "ReadSamples", func() { s, err = ReadSamples(bytes.NewReader(data), "fuzz.csv") })
 		if err != nil {
 			if s != nil {
 				t.Fatal("sheet and error together")
@@ -97,7 +97,7 @@ func FuzzReadSpec(f *testing.F) {
 	f.Fuzz(func(t *testing.T, data []byte) {
 		var sp *Spec
 		var err error
-		fzBound(t, fzDeadline, fzMaxAlloc(len(data)), "ReadSpec", func() { sp, err = ReadSpec(bytes.NewReader(data), "fuzz.spec") })
+		fuzzguard.Bound(t, fzDeadline, fzMaxAlloc(len(data)), "ReadSpec", func() { sp, err = ReadSpec(bytes.NewReader(data), "fuzz.spec") })
 		if err != nil {
 			if sp != nil {
 				t.Fatal("spec and error together")
@@ -138,30 +138,3 @@ func FuzzReadSpec(f *testing.F) {
 const fzDeadline = 10 * time.Second
 
 func fzMaxAlloc(n int) uint64 { return 64<<20 + 512*uint64(n) }
-
-// fzBound runs f and fails the test if it does not return within d or
-// allocates more than maxAlloc bytes on the heap (runtime/metrics
-// /gc/heap/allocs:bytes, cheap enough to read for every input). A panic
-// in f crashes the fuzz worker, which the fuzzer reports with the input.
-func fzBound(t *testing.T, d time.Duration, maxAlloc uint64, what string, f func()) {
-	t.Helper()
-	sample := []metrics.Sample{{Name: "/gc/heap/allocs:bytes"}}
-	metrics.Read(sample)
-	before := sample[0].Value.Uint64()
-	done := make(chan struct{})
-	go func() {
-		defer close(done)
-		f()
-	}()
-	timer := time.NewTimer(d)
-	defer timer.Stop()
-	select {
-	case <-done:
-	case <-timer.C:
-		t.Fatalf("%s did not return within %v", what, d)
-	}
-	metrics.Read(sample)
-	if a := sample[0].Value.Uint64() - before; a > maxAlloc {
-		t.Fatalf("%s allocated %d bytes (limit %d)", what, a, maxAlloc)
-	}
-}
