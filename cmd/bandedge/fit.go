@@ -216,8 +216,11 @@ func printText(w io.Writer, o *scan.Outcome) {
 		printComparison(w, c)
 	}
 	if res.Tauc != nil {
-		fmt.Fprintf(w, "\nTauc (direct allowed) E_g = %.4f ± %.2g eV over %.4f–%.4f eV (%d points; statistical only)\n",
-			res.Tauc.Value, res.Tauc.Err, res.Tauc.Range[0], res.Tauc.Range[1], res.Tauc.Points)
+		// The construction of the model's own band (r = 2 for an indirect
+		// edge, …), named after it.
+		kind := strings.ReplaceAll(strings.TrimPrefix(res.Tauc.Name, "tauc-"), "-", " ")
+		fmt.Fprintf(w, "\nTauc (%s, r = %g) E_g = %.4f ± %.2g eV over %.4f–%.4f eV (%d points; statistical only)\n",
+			kind, res.Tauc.Exponent, res.Tauc.Value, res.Tauc.Err, res.Tauc.Range[0], res.Tauc.Range[1], res.Tauc.Points)
 	}
 	if res.Urbach != nil {
 		fmt.Fprintf(w, "Urbach plot E_U = %.2f ± %.2g meV over %.4f–%.4f eV (%d points; statistical only)\n",
