@@ -157,9 +157,11 @@ type work struct {
 	f0   []float64 // r(init)
 
 	// Buffers of Fit, recycled with the work.
-	sqrtw  []float64
-	negsw  []float64
-	bounds []float64
+	jcache  []float64 // m×n: J at jcacheX from a one-pass model evaluation
+	jcacheX []float64
+	sqrtw   []float64
+	negsw   []float64
+	bounds  []float64
 
 	stats optimize.Stats
 }

@@ -213,6 +213,17 @@ func (m Edge) Jacobian(dst *mat.Dense, e, p []float64) {
 	m.run(nil, raw.Data, raw.Stride, e, p)
 }
 
+// EvalJacobian fills dst with α and jac with the Jacobian in one pass
+// (model.ValueJacobianer): every band of Edge is proportional to its
+// amplitude, α = C·∂α/∂C.
+func (m Edge) EvalJacobian(dst []float64, jac *mat.Dense, e, p []float64) {
+	checkLen(dst, e, p, m.nParams())
+	checkJac(jac, e, p, m.nParams())
+	raw := jac.RawMatrix()
+	m.run(nil, raw.Data, raw.Stride, e, p)
+	valuesFromAmp(dst, raw.Data, raw.Stride, 1, p[1])
+}
+
 func (m Edge) jacobianRaw(data []float64, stride int, e, p []float64) {
 	m.run(nil, data, stride, e, p)
 }

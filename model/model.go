@@ -67,6 +67,27 @@ type Jacobianer interface {
 	Jacobian(dst *mat.Dense, e, p []float64)
 }
 
+// ValueJacobianer is implemented by models that give α and its Jacobian
+// from one pass over the energies, for a solver that wants the Jacobian
+// at most of the points it evaluates (a Levenberg–Marquardt step asks
+// for J exactly where the last residuals were accepted). EvalJacobian fills
+// dst as Eval would, to within a few ulp, and jac as Jacobian does.
+//
+// Every model of this package whose amplitude is a plain factor,
+// α = C·s(E; other parameters), implements it as the Jacobian plus
+// α_i = C·∂α_i/∂C: the values cost one multiplication per point.
+type ValueJacobianer interface {
+	EvalJacobian(dst []float64, jac *mat.Dense, e, p []float64)
+}
+
+// valuesFromAmp sets dst[i] = c·data[i*stride+j], α from the column of an
+// amplitude that multiplies the whole model.
+func valuesFromAmp(dst, data []float64, stride, j int, c float64) {
+	for i := range dst {
+		dst[i] = c * data[i*stride+j]
+	}
+}
+
 // ParamIndex returns the index of the parameter called name in m.Params(),
 // or -1 when there is none.
 func ParamIndex(m Model, name string) int {

@@ -107,6 +107,16 @@ func (m DirectUrbach) Jacobian(dst *mat.Dense, e, p []float64) {
 	m.jacobianRaw(raw.Data, raw.Stride, e, p)
 }
 
+// EvalJacobian fills dst with α and jac with the Jacobian in one pass
+// (model.ValueJacobianer): α = C·∂α/∂C.
+func (m DirectUrbach) EvalJacobian(dst []float64, jac *mat.Dense, e, p []float64) {
+	checkLen(dst, e, p, 3)
+	checkJac(jac, e, p, 3)
+	raw := jac.RawMatrix()
+	m.jacobianRaw(raw.Data, raw.Stride, e, p)
+	valuesFromAmp(dst, raw.Data, raw.Stride, 1, p[1])
+}
+
 func (DirectUrbach) jacobianRaw(data []float64, stride int, e, p []float64) {
 	eg, c, g := p[0], p[1], p[2]
 	sg := math.Sqrt(g)

@@ -227,16 +227,47 @@ func newProblem(d Data, m model.Model, in []bool) problem {
 	buf := make([]float64, n)
 	f := fit.Func{M: n, Lower: lower, Upper: upper}
 	jm, hasJac := m.(model.Jacobianer)
+	// With a one-pass model (model.ValueJacobianer) every evaluation also
+	// keeps ∂α/∂p, which the solver then asks for at the same p (see
+	// fit.Fit): modelAt fills buf and, when it can, jcache at p.
+	vj, onePass := m.(model.ValueJacobianer)
+	onePass = onePass && hasJac
+	var jcache *mat.Dense
+	jcP := make([]float64, k)
+	jcOK := false
+	if onePass {
+		jcache = mat.NewDense(n, k, nil)
+	}
+	modelAt := func(p []float64) {
+		if !onePass {
+			m.Eval(buf, e, p)
+			return
+		}
+		vj.EvalJacobian(buf, jcache, e, p)
+		copy(jcP, p)
+		jcOK = true
+	}
+	modelJac := func(dst *mat.Dense, p []float64) {
+		if jcOK && floats.Equal(p, jcP) {
+			if raw := dst.RawMatrix(); raw.Stride == k {
+				copy(raw.Data, jcache.RawMatrix().Data) // both contiguous n×k
+			} else {
+				dst.Copy(jcache)
+			}
+			return
+		}
+		jm.Jacobian(dst, e, p)
+	}
 	if !tsp {
 		f.Residuals = func(dst, p []float64) {
-			m.Eval(buf, e, p)
+			modelAt(p)
 			for i := range dst {
 				dst[i] = sw[i] * (y[i] - buf[i])
 			}
 		}
 		if hasJac {
 			f.Jacobian = func(dst *mat.Dense, p []float64) {
-				jm.Jacobian(dst, e, p)
+				modelJac(dst, p)
 				raw := dst.RawMatrix()
 				for i := range n {
 					row := raw.Data[i*raw.Stride : i*raw.Stride+k]
@@ -261,7 +292,7 @@ func newProblem(d Data, m model.Model, in []bool) problem {
 		lastP := make([]float64, k)
 		have := false
 		eval := func(p []float64) {
-			m.Eval(buf, e, p)
+			modelAt(p)
 			for i, al := range buf {
 				x[i] = math.Exp(-al * dcm)
 			}
@@ -284,7 +315,7 @@ func newProblem(d Data, m model.Model, in []bool) problem {
 				if !have || !floats.Equal(p, lastP) {
 					eval(p)
 				}
-				jm.Jacobian(dst, e, p)
+				modelJac(dst, p)
 				raw := dst.RawMatrix()
 				for i := range n {
 					// dT/dα = −d·a x (1 + R²x²)/(1 − R²x²)²
