@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat"
@@ -210,8 +211,8 @@ func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
 	}
 	res := &Result{Model: m.Name(), Space: d.Space(), Budgets: map[string]Budget{}, EP: math.NaN()}
 
-	start := startValues(d, m, res)
 	res.Constructions = Constructions(d)
+	start := startValues(d, m, res)
 	forced := o.Window != [2]float64{}
 	var win [2]float64
 	var in []bool
@@ -268,6 +269,7 @@ func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
 	pr := newProblem(d, m, in)
 	jac := residualJacobian(pr, fr.Params)
 	res.PredictedBias = predictedBias(pr, fr, jac)
+	pr.release()
 	if res.PredictedBias == nil {
 		res.PredictedBias = make([]float64, len(fr.Params))
 		for j := range res.PredictedBias {
@@ -394,7 +396,23 @@ func startValues(d Data, m model.Model, res *Result) []float64 {
 		r = t.TaucExponent()
 	}
 	gap := math.NaN()
-	if t, err := Tauc(d, r); err == nil && isFinite(t.Value) {
+	// The Tauc construction of the model's exponent, from the
+	// constructions already made of d when they hold it.
+	t, err := Construction{}, error(nil)
+	found := false
+	for _, c := range res.Constructions {
+		if c.Exponent == r && strings.HasPrefix(c.Name, "tauc") {
+			t, found = c, true
+			if c.Failed != "" {
+				err = errors.New(c.Failed)
+			}
+			break
+		}
+	}
+	if !found {
+		t, err = Tauc(d, r)
+	}
+	if err == nil && isFinite(t.Value) {
 		res.Tauc = &t
 		gap = t.Value
 	}
@@ -548,6 +566,7 @@ func fitWindow(ctx context.Context, d Data, m model.Model, in []bool, start []fl
 		return nil, fmt.Errorf("%w: %d points, need at least %d (3 per parameter, at least %d)", ErrTooFewPoints, n, need, MinWindowPoints)
 	}
 	pr := newProblem(d, m, in)
+	defer pr.release() // a Result holds nothing of the problem's buffers
 	fr, err := fit.LeastSquares(ctx, pr.f, start, pr.set)
 	if fr == nil || !atBound(fr) || ctx.Err() != nil {
 		return fr, err

@@ -41,8 +41,9 @@ type Construction struct {
 func Constructions(d Data) []Construction {
 	var out []Construction
 	gap := math.NaN()
+	es := steepestRise(d) // the same for every construction of d
 	for _, r := range []float64{0.5, 1.5, 2, 3} {
-		c, err := Tauc(d, r)
+		c, err := taucAt(d, r, es)
 		if err != nil {
 			c = Construction{Name: taucName(r), Exponent: r, X: c.X, Y: c.Y, Sigma: c.Sigma, Failed: err.Error()}
 		} else if r == 0.5 {
@@ -50,7 +51,7 @@ func Constructions(d Data) []Construction {
 		}
 		out = append(out, c)
 	}
-	c, err := Cody(d)
+	c, err := codyAt(d, es)
 	if err != nil {
 		c = Construction{Name: "cody", X: c.X, Y: c.Y, Sigma: c.Sigma, Failed: err.Error()}
 	}
@@ -82,6 +83,11 @@ const growTol = 3
 // (widened to MinLinearPoints); it then grows by GrowLine with a 3σ
 // threshold. E_g is the root of the line.
 func Tauc(d Data, r float64) (Construction, error) {
+	return taucAt(d, r, steepestRise(d))
+}
+
+// taucAt is Tauc with the energy of steepest rise es of d given.
+func taucAt(d Data, r, es float64) (Construction, error) {
 	name := taucName(r)
 	if !(r > 0) {
 		return Construction{}, fmt.Errorf("tauc: exponent r = %g: %w", r, ErrNoLinearRange)
@@ -94,7 +100,7 @@ func Tauc(d Data, r float64) (Construction, error) {
 		y = math.Pow(a*e, p)
 		return y, p * y / a * s, true
 	}
-	c, err := edgeConstruction(d, name, tr, 0.2, 0.6)
+	c, err := edgeConstruction(d, name, tr, 0.2, 0.6, es)
 	if err != nil {
 		return c, err
 	}
@@ -110,6 +116,11 @@ func Tauc(d Data, r float64) (Construction, error) {
 //
 // with the same linear range rule as Tauc.
 func Cody(d Data) (Construction, error) {
+	return codyAt(d, steepestRise(d))
+}
+
+// codyAt is Cody with the energy of steepest rise es of d given.
+func codyAt(d Data, es float64) (Construction, error) {
 	tr := func(e, a, s float64) (y, sy float64, ok bool) {
 		if !(a > 0) {
 			return 0, 0, false
@@ -117,7 +128,7 @@ func Cody(d Data) (Construction, error) {
 		y = math.Sqrt(a / e)
 		return y, 0.5 * y / a * s, true
 	}
-	c, err := edgeConstruction(d, "cody", tr, 0.2, 0.6)
+	c, err := edgeConstruction(d, "cody", tr, 0.2, 0.6, es)
 	if err != nil {
 		return c, err
 	}
@@ -183,9 +194,10 @@ func Urbach(d Data, gapHint float64) (Construction, error) {
 
 // edgeConstruction applies a transform to the usable points with positive
 // α and fits the grown line from a seed between the fractions lo and hi of
-// the 95th percentile of the transformed values.
-func edgeConstruction(d Data, name string, tr func(e, a, s float64) (y, sy float64, ok bool), lo, hi float64) (Construction, error) {
-	var x, y, s []float64
+// the 95th percentile of the transformed values near es, the energy of
+// steepest rise of d (steepestRise; NaN: over all points).
+func edgeConstruction(d Data, name string, tr func(e, a, s float64) (y, sy float64, ok bool), lo, hi, es float64) (Construction, error) {
+	x, y, s := make([]float64, 0, len(d.E)), make([]float64, 0, len(d.E)), make([]float64, 0, len(d.E))
 	for i := range d.E {
 		if !d.usable(i) {
 			continue
@@ -203,7 +215,7 @@ func edgeConstruction(d Data, name string, tr func(e, a, s float64) (y, sy float
 		return c, fmt.Errorf("%s: %d usable points: %w", name, len(x), ErrNoLinearRange)
 	}
 	ref := quantile(y, 0.95)
-	if es := steepestRise(d); !math.IsNaN(es) {
+	if !math.IsNaN(es) {
 		var near []float64
 		for i, e := range x {
 			if e >= es-edgeBelow && e <= es+edgeAbove {

@@ -3,6 +3,7 @@ package edge
 import (
 	"fmt"
 	"math"
+	"sync"
 
 	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/mat"
@@ -185,6 +186,33 @@ func fitMask(d Data, m model.Model, w [2]float64, p []float64) ([]bool, int) {
 type problem struct {
 	f   fit.Func
 	set *fit.Settings
+	buf *problemBuffers
+}
+
+// problemBuffers are the per-point arrays of a problem. A batch builds a
+// dozen problems per scan (the window passes and the budget refits), and
+// allocating them anew was most of its garbage; fitWindow recycles them
+// through problemPool once its fits are done.
+type problemBuffers struct {
+	e, y, sw, refl, a, r2, x, buf, jc []float64
+}
+
+var problemPool = sync.Pool{New: func() any { return new(problemBuffers) }}
+
+// sized returns s with length 0 and capacity at least n.
+func sized(s []float64, n int) []float64 {
+	if cap(s) < n {
+		return make([]float64, 0, n)
+	}
+	return s[:0]
+}
+
+// release returns the problem's buffers to problemPool; the problem and
+// its Func must not be used afterwards.
+func (pr problem) release() {
+	if pr.buf != nil {
+		problemPool.Put(pr.buf)
+	}
 }
 
 // newProblem builds the residual function of m over the points of d marked
@@ -196,14 +224,15 @@ func newProblem(d Data, m model.Model, in []bool) problem {
 	n := count(in)
 	ps := m.Params()
 	k := len(ps)
-	e := make([]float64, 0, n)
-	y := make([]float64, 0, n)
-	sw := make([]float64, 0, n) // √w_i
+	pb := problemPool.Get().(*problemBuffers)
+	e := sized(pb.e, n)
+	y := sized(pb.y, n)
+	sw := sized(pb.sw, n) // √w_i
 	var refl []float64
 	tsp := d.tSpace()
 	var dcm float64
 	if tsp {
-		refl = make([]float64, 0, n)
+		refl = sized(pb.refl, n)
 		dcm = d.Transmission.Thickness
 	}
 	for i, ok := range in {
@@ -224,7 +253,7 @@ func newProblem(d Data, m model.Model, in []bool) problem {
 	for j, q := range ps {
 		lower[j], upper[j] = q.Min, q.Max
 	}
-	buf := make([]float64, n)
+	buf := sized(pb.buf, n)[:n]
 	f := fit.Func{M: n, Lower: lower, Upper: upper}
 	jm, hasJac := m.(model.Jacobianer)
 	// With a one-pass model (model.ValueJacobianer) every evaluation also
@@ -236,7 +265,8 @@ func newProblem(d Data, m model.Model, in []bool) problem {
 	jcP := make([]float64, k)
 	jcOK := false
 	if onePass {
-		jcache = mat.NewDense(n, k, nil)
+		pb.jc = sized(pb.jc, n*k)[:n*k]
+		jcache = mat.NewDense(n, k, pb.jc)
 	}
 	modelAt := func(p []float64) {
 		if !onePass {
@@ -283,12 +313,13 @@ func newProblem(d Data, m model.Model, in []bool) problem {
 		// are identical); x = e^(−αd) of the last residual evaluation is
 		// kept for the Jacobian at the same p, which the engine asks for
 		// after accepting a step.
-		a := make([]float64, n)
-		r2 := make([]float64, n)
+		a := sized(pb.a, n)[:n]
+		r2 := sized(pb.r2, n)[:n]
 		for i, r := range refl {
 			a[i], r2[i] = (1-r)*(1-r), r*r
 		}
-		x := make([]float64, n)
+		x := sized(pb.x, n)[:n]
+		pb.a, pb.r2, pb.x = a, r2, x
 		lastP := make([]float64, k)
 		have := false
 		eval := func(p []float64) {
@@ -335,7 +366,8 @@ func newProblem(d Data, m model.Model, in []bool) problem {
 			}
 		}
 	}
-	return problem{f: f, set: &fit.Settings{AbsoluteSigma: d.SigmaKnown}}
+	pb.e, pb.y, pb.sw, pb.refl, pb.buf = e, y, sw, refl, buf
+	return problem{f: f, set: &fit.Settings{AbsoluteSigma: d.SigmaKnown}, buf: pb}
 }
 
 // FitResiduals returns, for every point of d, the normalised residual of
@@ -348,6 +380,7 @@ func FitResiduals(d Data, m model.Model, p []float64, in []bool) []float64 {
 		out[i] = math.NaN()
 	}
 	pr := newProblem(d, m, in)
+	defer pr.release()
 	if pr.f.M == 0 {
 		return out
 	}

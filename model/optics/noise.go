@@ -1,11 +1,6 @@
 package optics
 
-import (
-	"math"
-	"sort"
-
-	"gonum.org/v1/gonum/stat"
-)
+import "math"
 
 // madScale is 1/Φ⁻¹(3/4): for Gaussian data, σ = madScale·MAD.
 const madScale = 1.482602218505602
@@ -50,9 +45,57 @@ func NoiseSigma(y []float64) float64 {
 	return madScale * median(d) / math.Sqrt(6)
 }
 
-// median sorts x in place and returns its median (stat.Quantile with the
-// empirical rule, the lower middle value for even length).
+// median reorders x and returns its median: the lower middle value for an
+// even length, as stat.Quantile(0.5, stat.Empirical) of the sorted x. It
+// selects that order statistic in O(n) (kth) rather than sorting, which
+// was most of the cost of a conversion; x must hold no NaN.
 func median(x []float64) float64 {
-	sort.Float64s(x)
-	return stat.Quantile(0.5, stat.Empirical, x, nil)
+	return kth(x, (len(x)-1)/2)
+}
+
+// kth reorders x so that x[k] is its k-th smallest value (0-based) with
+// no larger value before it and no smaller after it, and returns x[k]
+// (Hoare's selection with a median-of-three pivot; C. A. R. Hoare,
+// Commun. ACM 4, 321, 1961). x must be non-empty, 0 ≤ k < len(x) and hold
+// no NaN.
+func kth(x []float64, k int) float64 {
+	lo, hi := 0, len(x)-1
+	for hi > lo {
+		mid := lo + (hi-lo)/2
+		// Order x[lo], x[mid], x[hi]; the median of the three is the pivot.
+		if x[mid] < x[lo] {
+			x[mid], x[lo] = x[lo], x[mid]
+		}
+		if x[hi] < x[lo] {
+			x[hi], x[lo] = x[lo], x[hi]
+		}
+		if x[hi] < x[mid] {
+			x[hi], x[mid] = x[mid], x[hi]
+		}
+		pivot := x[mid]
+		i, j := lo, hi
+		for i <= j {
+			for x[i] < pivot {
+				i++
+			}
+			for x[j] > pivot {
+				j--
+			}
+			if i <= j {
+				x[i], x[j] = x[j], x[i]
+				i++
+				j--
+			}
+		}
+		// Now x[lo..j] ≤ pivot ≤ x[i..hi], and x[j+1..i-1] = pivot.
+		switch {
+		case k <= j:
+			hi = j
+		case k >= i:
+			lo = i
+		default:
+			return x[k]
+		}
+	}
+	return x[k]
 }

@@ -3,9 +3,11 @@ package optics
 import (
 	"math"
 	"math/rand/v2"
+	"sort"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
+	"gonum.org/v1/gonum/stat"
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
@@ -102,6 +104,43 @@ func TestNoiseSigmaEdgeCases(t *testing.T) {
 	for i := range y {
 		if y[i] != before[i] && !(math.IsNaN(y[i]) && math.IsNaN(before[i])) {
 			t.Fatal("NoiseSigma modified its input")
+		}
+	}
+}
+
+// TestKth: the selection gives the same order statistic as sorting, for
+// every k, on random data with and without ties (lengths 1 to 60), and
+// median is the lower middle value gonum's stat.Quantile(0.5, Empirical)
+// gives.
+func TestKth(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	for n := 1; n <= 60; n++ {
+		for _, levels := range []int{0, 3} { // 0: continuous values; 3: many ties
+			x := make([]float64, n)
+			for i := range x {
+				if levels == 0 {
+					x[i] = rng.NormFloat64()
+				} else {
+					x[i] = float64(rng.IntN(levels))
+				}
+			}
+			sorted := append([]float64(nil), x...)
+			sort.Float64s(sorted)
+			for k := range n {
+				y := append([]float64(nil), x...)
+				if got := kth(y, k); got != sorted[k] {
+					t.Fatalf("n %d, k %d: kth = %v, sorted %v", n, k, got, sorted[k])
+				}
+				for i := range y {
+					if (i < k && y[i] > y[k]) || (i > k && y[i] < y[k]) {
+						t.Fatalf("n %d, k %d: not partitioned at %d", n, k, i)
+					}
+				}
+			}
+			y := append([]float64(nil), x...)
+			if got, want := median(y), stat.Quantile(0.5, stat.Empirical, sorted, nil); got != want {
+				t.Fatalf("n %d: median %v, stat.Quantile %v", n, got, want)
+			}
 		}
 	}
 }
