@@ -14,6 +14,7 @@ import (
 	"bandedge/bench/scangen"
 	"bandedge/fit/lot"
 	"bandedge/fit/scan"
+	"bandedge/io/atomicfile"
 	"bandedge/io/results"
 )
 
@@ -55,17 +56,19 @@ func benchBatch(b *testing.B, noReports bool) (*batchOptions, lot.Job) {
 // converts and analyses it (fit/scan: the automatic window, the eight
 // window-family refits and the two index refits of the budget), builds
 // the record and summary row, and writeScanFiles writes results/scan.json
-// and, unless noReports, reports/scan.png. The per-batch summary, roll-up
+// and, unless noReports, reports/scan.png, and the record is flushed to
+// disk. The per-batch summary, roll-up
 // and wafer maps are not included (BenchmarkBatchLot has them).
 func benchScanPipeline(b *testing.B, noReports bool) {
 	opts, job := benchBatch(b, noReports)
 	resDir, repDir := filepath.Join(opts.OutDir, "results"), filepath.Join(opts.OutDir, "reports")
 	now := time.Date(2026, 12, 2, 0, 0, 0, 0, time.UTC)
+	var records atomicfile.Deferred
 	set := &lot.Settings{
 		Workers:    1,
 		Provenance: func(s scan.Settings) results.Provenance { return results.NewProvenance(version, s, now) },
 		Done: func(ctx context.Context, sc *lot.Scan, o *scan.Outcome) error {
-			return writeScanFiles(opts, sc, o, resDir, repDir)
+			return writeScanFiles(opts, &records, sc, o, resDir, repDir)
 		},
 	}
 	jobs := []lot.Job{job}
@@ -75,6 +78,9 @@ func benchScanPipeline(b *testing.B, noReports bool) {
 		scans, err := lot.Run(ctx, jobs, set)
 		if err != nil || !scans[0].Fitted() || scans[0].OutputErr != nil {
 			b.Fatalf("%v, %v, %v", err, scans[0].Err, scans[0].OutputErr)
+		}
+		if err := records.Sync(); err != nil { // one scan's flush, as a batch pays it
+			b.Fatal(err)
 		}
 	}
 }
