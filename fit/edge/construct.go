@@ -214,7 +214,7 @@ func edgeConstruction(d Data, name string, tr func(e, a, s float64) (y, sy float
 	if len(x) < MinLinearPoints {
 		return c, fmt.Errorf("%s: %d usable points: %w", name, len(x), ErrNoLinearRange)
 	}
-	ref := quantile(y, 0.95)
+	ref := math.NaN()
 	if !math.IsNaN(es) {
 		var near []float64
 		for i, e := range x {
@@ -225,6 +225,9 @@ func edgeConstruction(d Data, name string, tr func(e, a, s float64) (y, sy float
 		if len(near) >= MinLinearPoints {
 			ref = quantile(near, 0.95)
 		}
+	}
+	if math.IsNaN(ref) { // no edge found, or too few points near it
+		ref = quantile(y, 0.95)
 	}
 	first, last := seedRange(y, lo*ref, hi*ref)
 	l, err := GrowLine(x, y, s, first, last, growTol)

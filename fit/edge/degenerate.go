@@ -82,7 +82,10 @@ func (r *Result) withhold(j *mat.Dense, ieg, iamp int, absolute bool) {
 		}
 		se, eta := pseudoStdErr(j, s2)
 		for a := range k {
-			if se == nil || !(eta[a] <= estimableEta) {
+			// A standard error that overflows (s² = SSR/DoF of a fit
+			// whose residuals overflow; found by FuzzAnalyze, input
+			// eb92e490f3fed983) is withheld too.
+			if se == nil || !(eta[a] <= estimableEta) || !isFinite(se[a]) {
 				mark[a] = true
 				continue
 			}
