@@ -77,6 +77,10 @@ type Options struct {
 	// candidate sees the reference model's points, so that their
 	// likelihoods compare); Window then only names their range.
 	points []bool
+	// constructions, when not nil, are Constructions(d) already made
+	// (Compare makes them once for all its candidates: they depend on
+	// the data alone).
+	constructions []Construction
 }
 
 // KaneInputs are the material inputs needed to turn the fitted amplitude
@@ -211,7 +215,10 @@ func Analyze(ctx context.Context, d Data, o Options) (*Result, error) {
 	}
 	res := &Result{Model: m.Name(), Space: d.Space(), Budgets: map[string]Budget{}, EP: math.NaN()}
 
-	res.Constructions = Constructions(d)
+	res.Constructions = o.constructions
+	if res.Constructions == nil {
+		res.Constructions = Constructions(d)
+	}
 	start := startValues(d, m, res)
 	forced := o.Window != [2]float64{}
 	var win [2]float64

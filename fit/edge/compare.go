@@ -99,6 +99,7 @@ func Compare(ctx context.Context, d Data, cands []model.Model, o Options) (*Comp
 	common := o
 	common.Window = ref.Window
 	common.points = ref.InWindow
+	common.constructions = ref.Constructions
 	for i, m := range cands {
 		cand := Candidate{Model: m.Name(), K: len(m.Params())}
 		var res *Result
