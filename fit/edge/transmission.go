@@ -3,6 +3,7 @@ package edge
 import (
 	"fmt"
 	"math"
+	"sort"
 	"sync"
 
 	"gonum.org/v1/gonum/floats"
@@ -157,20 +158,28 @@ func (d Data) fitUsableCount() int {
 // left out.
 func fitMask(d Data, m model.Model, w [2]float64, p []float64) ([]bool, int) {
 	in := make([]bool, len(d.E))
+	// d.E ascends (Validate): the window is the run i0 ≤ i < i1, and the
+	// model is evaluated there only.
+	i0 := sort.SearchFloat64s(d.E, w[0])
+	i1 := i0
+	for i1 < len(d.E) && d.E[i1] <= w[1] {
+		i1++
+	}
 	var pred []float64
 	var floor float64
-	if d.tSpace() {
-		pred = make([]float64, len(d.E))
-		m.Eval(pred, d.E, p)
+	if d.tSpace() && i1 > i0 {
+		pred = make([]float64, i1-i0)
+		m.Eval(pred, d.E[i0:i1], p)
 		floor = d.Transmission.floorT()
 	}
 	left := 0
-	for i, e := range d.E {
+	for i := i0; i < i1; i++ {
+		e := d.E[i]
 		if !(d.fitUsable(i) && e >= w[0] && e <= w[1]) {
 			continue
 		}
 		if pred != nil {
-			t := optics.SlabTransmittance(pred[i], d.Transmission.R[i], d.Transmission.Thickness)
+			t := optics.SlabTransmittance(pred[i-i0], d.Transmission.R[i], d.Transmission.Thickness)
 			if !(t >= floor) {
 				left++
 				continue
