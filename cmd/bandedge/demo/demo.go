@@ -82,7 +82,7 @@ func Scans() []Scan {
 			File: "KM2611-W03-centre.csv", Style: "comma-separated, preamble, wavelength (nm) descending, %T",
 			Truth: []float64{1.4240, c, 0.0078}, Settings: with(2.0, 0.04),
 			Flags: "--thickness 2.0um --thickness-err 0.04um " + common,
-			Note:  "a clean film: the budget is dominated by the statistics and the window",
+			Note:  "a clean film: the wavelength scale and the refractive index dominate the budget, the statistics are a fraction of them",
 			write: func(w io.Writer, rng *rand.Rand) error {
 				e, t := transmission(1.4240, c, 0.0078, 2.0e-4, nil, 700, 1000, 1, rng)
 				nm, pt := descendingNM(e, t, 100)
