@@ -195,3 +195,67 @@ func TestRunFitBadInput(t *testing.T) {
 		t.Errorf("bad flag: exit %d, want %d", code, exitUsage)
 	}
 }
+
+// TestDemoNotes: what the demo says of each of its scans holds for the
+// records it writes (the demo data are invented; the claims are about
+// the tool's own output): on W03 the wavelength scale and the refractive
+// index are the two largest terms of E_g's budget, each larger than the
+// statistics; W04 carries the χ² warning that suggests a baseline; on the
+// thick substrate SUB-07 E_g is not determined (tail only, its
+// uncertainty null) while E_U is.
+func TestDemoNotes(t *testing.T) {
+	dir := demoScans(t)
+	type term struct {
+		Source string  `json:"source"`
+		U      float64 `json:"u"`
+	}
+	type record struct {
+		EgErr    *float64 `json:"eg_err_ev"`
+		TailOnly bool     `json:"tail_only"`
+		Eu       *float64 `json:"urbach_ev"`
+		Warnings []string `json:"warnings"`
+		Budgets  []struct {
+			Quantity string `json:"quantity"`
+			Terms    []term `json:"terms"`
+		} `json:"budgets"`
+	}
+	read := func(name string) record {
+		b, err := os.ReadFile(filepath.Join(dir, "results", name+".json"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		var r record
+		if err := json.Unmarshal(b, &r); err != nil {
+			t.Fatal(err)
+		}
+		return r
+	}
+	w03 := read("KM2611-W03-centre")
+	u := map[string]float64{}
+	for _, b := range w03.Budgets {
+		if b.Quantity == "E_g" {
+			for _, tm := range b.Terms {
+				u[tm.Source] = tm.U
+			}
+		}
+	}
+	for _, big := range []string{"wavelength scale", "refractive index"} {
+		for _, small := range []string{"statistical", "fit window"} {
+			if !(u[big] > u[small]) {
+				t.Errorf("W03: %s %.3g eV not above %s %.3g eV (terms %v)", big, u[big], small, u[small], u)
+			}
+		}
+	}
+	w04 := read("KM2611-W04-edge")
+	found := false
+	for _, w := range w04.Warnings {
+		found = found || (strings.Contains(w, "χ²_red") && strings.Contains(w, "baseline"))
+	}
+	if !found {
+		t.Errorf("W04: no χ² warning suggesting a baseline: %q", w04.Warnings)
+	}
+	sub := read("KM2611-SUB-07")
+	if !sub.TailOnly || sub.EgErr != nil || sub.Eu == nil {
+		t.Errorf("SUB-07: tail_only %v (want true), eg_err_ev %v (want null), urbach_ev %v (want a number)", sub.TailOnly, sub.EgErr, sub.Eu)
+	}
+}
