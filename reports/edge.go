@@ -121,6 +121,7 @@ func EdgeFigure(r EdgeReport) (*EdgePage, error) {
 	pa := newPlot()
 	pa.Title.Text = "Absorption coefficient"
 	pa.X.Label.Text = "E (eV)"
+	pa.X.Tick.Marker = niceTicks{n: 8} // labels with the decimals the range needs
 	pa.Y.Label.Text = "α (cm⁻¹)"
 	pa.Y.Scale = plot.LogScale{}
 	pa.Y.Tick.Marker = decadeTicks{}
@@ -148,6 +149,7 @@ func EdgeFigure(r EdgeReport) (*EdgePage, error) {
 	// Residual panel.
 	pr := newPlot()
 	pr.X.Label.Text = "E (eV)"
+	pr.X.Tick.Marker = niceTicks{n: 8} // labels with the decimals the range needs
 	pr.Y.Label.Text = "(α − fit)/σ_α"
 	if res.Space == edge.SpaceTransmittance {
 		pr.Y.Label.Text = "(T − fit)/σ_T"
@@ -181,6 +183,7 @@ func EdgeFigure(r EdgeReport) (*EdgePage, error) {
 	pt := newPlot()
 	pt.Title.Text = "(αE)² view (direct allowed)"
 	pt.X.Label.Text = "E (eV)"
+	pt.X.Tick.Marker = niceTicks{n: 8} // labels with the decimals the range needs
 	scale := decade(maxY(tIn, tOut))
 	pt.Y.Label.Text = fmt.Sprintf("(αE)² (10%s cm⁻²·eV²)", superscript(int(math.Round(math.Log10(scale)))))
 	pt.X.Min, pt.X.Max = xr[0], xr[1]
@@ -312,12 +315,9 @@ func resultLines(r EdgeReport, dropped int) (left, right []styledLine) {
 			add(s, 20, "%d. %s  ΔAIC %.1f  w %.2f  E_g %.4f eV", k+1, cd.Model, cd.DeltaAIC, cd.Weight, eg.Value)
 		}
 	}
-	for _, l := range r.InputLines {
-		add(s, 0, "%s", l)
-	}
-	if dropped > 0 {
-		add(s, 0, "%d points with α ≤ 0 or undefined are not drawn on the log axes", dropped)
-	}
+	// The warnings come before the input details: when the block is too
+	// long for the page, textBlock cuts its end, and what is cut is in
+	// the text and JSON outputs.
 	if len(res.Warnings) == 0 {
 		add(s, 0, "no warnings")
 	} else {
@@ -325,6 +325,12 @@ func resultLines(r EdgeReport, dropped int) (left, right []styledLine) {
 		for _, w := range res.Warnings {
 			add(s, 6, "• %s", w) // textBlock wraps it, continued 8 points in
 		}
+	}
+	for _, l := range r.InputLines {
+		add(s, 0, "%s", l)
+	}
+	if dropped > 0 {
+		add(s, 0, "%d points with α ≤ 0 or undefined are not drawn on the log axes", dropped)
 	}
 	return nil, right
 }
@@ -334,6 +340,10 @@ func budgetText(b edge.Budget) string {
 	for i, t := range b.Dominant() {
 		if i >= 3 {
 			break
+		}
+		if math.IsNaN(t.U) {
+			parts = append(parts, t.Source+" not available")
+			continue
 		}
 		parts = append(parts, fmt.Sprintf("%s %.2g", t.Source, t.U))
 	}

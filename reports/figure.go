@@ -144,17 +144,35 @@ func textStyle(size vg.Length, bold bool) draw.TextStyle {
 // text runs off the page whatever the length of a file name, a window rule
 // or a warning.
 func textBlock(c draw.Canvas, pt vg.Point, lines []styledLine) vg.Length {
-	y := pt.Y
+	type part struct {
+		text   string
+		style  draw.TextStyle
+		indent vg.Length
+	}
+	var parts []part
 	for _, l := range lines {
-		st := l.style
-		for i, part := range fitWidth(st, l.text, c.Max.X-pt.X-l.indent, 8) {
+		for i, t := range fitWidth(l.style, l.text, c.Max.X-pt.X-l.indent, 8) {
 			ind := l.indent
 			if i > 0 {
 				ind += 8
 			}
-			c.FillText(st, vg.Point{X: pt.X + ind, Y: y}, part)
-			y -= st.Font.Size * 1.35
+			parts = append(parts, part{t, l.style, ind})
 		}
+	}
+	step := func(p part) vg.Length { return p.style.Font.Size * 1.35 }
+	// What does not fit above c.Min.Y is cut, and a last line says so
+	// (the text and JSON outputs have it all): a report never writes over
+	// its footer.
+	y := pt.Y
+	for i, p := range parts {
+		if i < len(parts)-1 && y-step(p)-step(parts[i+1]) < c.Min.Y {
+			more := part{fmt.Sprintf("… %d more lines: see the text or JSON output", len(parts)-i), p.style, 0}
+			more.style.Font.Size = parts[len(parts)-1].style.Font.Size
+			c.FillText(more.style, vg.Point{X: pt.X, Y: y}, more.text)
+			return y - step(more)
+		}
+		c.FillText(p.style, vg.Point{X: pt.X + p.indent, Y: y}, p.text)
+		y -= step(p)
 	}
 	return y
 }
