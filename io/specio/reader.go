@@ -646,28 +646,23 @@ func (p *parser) setHeader(i int, fs []field) {
 }
 
 // readMeta collects key/value pairs from the lines above the data: content
-// lines above the header and comment lines.
+// lines above the header and comment lines, and from the trailing block
+// after the data.
 func (p *parser) readMeta() {
 	values := map[string][]string{}
 	var order []string
-	for i := 0; i < p.dataStart; i++ {
-		line := strings.TrimRight(p.lines[i], "\r")
-		comment := p.isComment(line)
-		if isBlank(line) || !comment && i >= p.headerTop {
-			continue
-		}
-		if p.header != nil && i == p.headerLn-1 {
-			continue
-		}
-		if comment {
+	// add takes one line (CR removed): a comment's text after its marker,
+	// split into key and value, within the bounds on Meta.
+	add := func(line string) {
+		if p.isComment(line) {
 			line = line[strings.IndexRune(line, p.comment)+utf8.RuneLen(p.comment):]
 		}
 		k, v, ok := keyValue(line, p.mode.sep)
 		if !ok {
-			continue
+			return
 		}
 		if _, seen := values[k]; !seen && len(order) >= maxMetaKeys {
-			continue
+			return
 		} else if !seen {
 			order = append(order, k)
 		}
@@ -675,25 +670,19 @@ func (p *parser) readMeta() {
 			values[k] = append(values[k], v)
 		}
 	}
-	for i := p.dataEnd; i < len(p.lines); i++ {
+	for i := 0; i < p.dataStart; i++ {
 		line := strings.TrimRight(p.lines[i], "\r")
-		if isBlank(line) {
+		if isBlank(line) || !p.isComment(line) && i >= p.headerTop {
 			continue
 		}
-		if p.isComment(line) {
-			line = line[strings.IndexRune(line, p.comment)+utf8.RuneLen(p.comment):]
-		}
-		k, v, ok := keyValue(line, p.mode.sep)
-		if !ok {
+		if p.header != nil && i == p.headerLn-1 {
 			continue
 		}
-		if _, seen := values[k]; !seen && len(order) >= maxMetaKeys {
-			continue
-		} else if !seen {
-			order = append(order, k)
-		}
-		if len(values[k]) < maxMetaValues {
-			values[k] = append(values[k], v)
+		add(line)
+	}
+	for i := p.dataEnd; i < len(p.lines); i++ {
+		if line := strings.TrimRight(p.lines[i], "\r"); !isBlank(line) {
+			add(line)
 		}
 	}
 	for _, k := range order {
