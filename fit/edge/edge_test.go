@@ -95,25 +95,37 @@ func TestTaucExactOnParabolicData(t *testing.T) {
 	}
 }
 
-// TestTailOnly: a 350 µm substrate shows only the tail; E_g must be
-// reported as not determined (NaN combined uncertainty), E_U as measured.
+// TestTailOnly: a 350 µm substrate shows only the tail; E_g and C must be
+// reported as not determined (NaN combined uncertainty), E_U as measured
+// within 3 combined standard uncertainties, whether the data are fitted in
+// α or in transmittance.
 func TestTailOnly(t *testing.T) {
 	truth := gaAsLike()
 	truth[2] = 0.007
-	d := synthData(t, truth, 350e-4, 0.002, 7)
-	res, err := Analyze(context.Background(), d, Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if !res.TailOnly {
-		t.Fatalf("tail-only data not recognised (window %v)", res.Window)
-	}
-	if !math.IsNaN(res.Budgets["eg"].Combined) || !math.IsNaN(res.Budgets["amp"].Combined) {
-		t.Errorf("E_g u_c = %g, C u_c = %g: want NaN (not determined)", res.Budgets["eg"].Combined, res.Budgets["amp"].Combined)
-	}
-	eu, _ := res.Param("eu")
-	if u := res.Budgets["eu"].Combined; !(u > 0) || math.Abs(eu.Value-truth[2]) > 3*u {
-		t.Errorf("E_U = %.5g ± %.2g, truth %.5g", eu.Value, u, truth[2])
+	for _, tc := range []struct {
+		name  string
+		synth func(*testing.T, []float64, float64, float64, uint64) Data
+	}{
+		{"alpha", synthData},
+		{"transmittance", synthTData},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			d := tc.synth(t, truth, 350e-4, 0.002, 7)
+			res, err := Analyze(context.Background(), d, Options{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !res.TailOnly {
+				t.Fatalf("tail-only data not recognised (window %v)", res.Window)
+			}
+			if !math.IsNaN(res.Budgets["eg"].Combined) || !math.IsNaN(res.Budgets["amp"].Combined) {
+				t.Errorf("E_g u_c = %g, C u_c = %g: want NaN (not determined)", res.Budgets["eg"].Combined, res.Budgets["amp"].Combined)
+			}
+			eu, _ := res.Param("eu")
+			if u := res.Budgets["eu"].Combined; !(u > 0) || math.Abs(eu.Value-truth[2]) > 3*u {
+				t.Errorf("E_U = %.5g ± %.2g, truth %.5g", eu.Value, u, truth[2])
+			}
+		})
 	}
 }
 

@@ -371,26 +371,3 @@ func TestAnalyzeRecoversTransmittance(t *testing.T) {
 		}
 	}
 }
-
-// TestTailOnlyTransmittance is TestTailOnly in transmittance space: a
-// 350 µm substrate shows only the tail, E_g and C are not determined,
-// E_U is measured within 3 combined standard uncertainties.
-func TestTailOnlyTransmittance(t *testing.T) {
-	truth := gaAsLike()
-	truth[2] = 0.007
-	d := synthTData(t, truth, 350e-4, 0.002, 7)
-	res, err := Analyze(context.Background(), d, Options{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if !res.TailOnly {
-		t.Fatalf("tail-only data not recognised (window %v)", res.Window)
-	}
-	if !math.IsNaN(res.Budgets["eg"].Combined) || !math.IsNaN(res.Budgets["amp"].Combined) {
-		t.Errorf("E_g u_c = %g, C u_c = %g: want NaN (not determined)", res.Budgets["eg"].Combined, res.Budgets["amp"].Combined)
-	}
-	eu, _ := res.Param("eu")
-	if u := res.Budgets["eu"].Combined; !(u > 0) || math.Abs(eu.Value-truth[2]) > 3*u {
-		t.Errorf("E_U = %.5g ± %.2g, truth %.5g", eu.Value, u, truth[2])
-	}
-}
