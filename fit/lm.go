@@ -157,11 +157,10 @@ type work struct {
 	f0   []float64 // r(init)
 
 	// Buffers of Fit, recycled with the work.
-	jcache  []float64 // m×n: J at jcacheX from a one-pass model evaluation
-	jcacheX []float64
-	sqrtw   []float64
-	negsw   []float64
-	bounds  []float64
+	ev     Evaluator
+	sqrtw  []float64
+	negsw  []float64
+	bounds []float64
 
 	stats optimize.Stats
 }
@@ -213,6 +212,7 @@ func getWork(m, n int) *work {
 // or closure that refers to its buffers, afterwards.
 func putWork(w *work) {
 	w.f = Func{}
+	w.ev.Reset(nil, nil)
 	w.rowScale = nil
 	w.jac = nil
 	workPool.Put(w)

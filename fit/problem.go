@@ -4,11 +4,6 @@ import (
 	"context"
 	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/floats"
-	"gonum.org/v1/gonum/mat"
-
-	"bandedge/model"
 )
 
 // Fit fits p.Model to the data (p.E, p.Alpha) with weights p.Weights by
@@ -91,54 +86,25 @@ func Fit(ctx context.Context, p Problem, s *Settings) (*Result, error) {
 	}
 
 	e, alpha := p.E, p.Alpha
-	mod := p.Model
-	// A model that gives α and J in one pass (model.ValueJacobianer) is
-	// evaluated that way at every residual evaluation, and J is kept: the
-	// solver asks for J exactly at the points whose residuals it accepted,
-	// so that most Jacobian calls become a copy (about a third of a
-	// 1000-point fit's time; BenchmarkFitDirectUrbach1000).
-	jm, hasJac := mod.(model.Jacobianer)
-	vj, onePass := mod.(model.ValueJacobianer)
-	var jc *mat.Dense
-	if hasJac && onePass {
-		w.jcache = grow(w.jcache, m*n)
-		w.jcacheX = grow(w.jcacheX, n)
-		jc = mat.NewDense(m, n, w.jcache)
-	}
-	jcOK := false
+	ev := &w.ev
+	ev.Reset(p.Model, e)
 	f := Func{
 		M:     m,
 		Lower: lower,
 		Upper: upper,
 		// r_i = √w_i·(α_i − f(E_i)), with the model evaluated into dst.
 		Residuals: func(dst, q []float64) {
-			if jc != nil {
-				vj.EvalJacobian(dst, jc, e, q)
-				copy(w.jcacheX, q)
-				jcOK = true
-			} else {
-				mod.Eval(dst, e, q)
-			}
+			ev.Eval(dst, q)
 			dst = dst[:len(alpha)]
 			for i, v := range dst {
 				dst[i] = sqrtw[i] * (alpha[i] - v)
 			}
 		},
 	}
-	if hasJac {
+	if ev.HasJacobian() {
 		// ∂r_i/∂p_j = −√w_i·∂f/∂p_j: the solver applies the row factors
 		// −√w_i while it transposes J (work.rowScale).
-		f.Jacobian = func(dst *mat.Dense, q []float64) {
-			if jcOK && floats.Equal(q, w.jcacheX) {
-				if raw := dst.RawMatrix(); raw.Stride == n {
-					copy(raw.Data, w.jcache) // both contiguous m×n
-				} else {
-					dst.Copy(jc)
-				}
-				return
-			}
-			jm.Jacobian(dst, e, q)
-		}
+		f.Jacobian = ev.Jacobian
 		w.negsw = grow(w.negsw, m)
 		for i, v := range sqrtw {
 			w.negsw[i] = -v

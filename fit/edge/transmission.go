@@ -203,7 +203,8 @@ type problem struct {
 // allocating them anew was most of its garbage; fitWindow recycles them
 // through problemPool once its fits are done.
 type problemBuffers struct {
-	e, y, sw, refl, a, r2, x, buf, jc []float64
+	e, y, sw, refl, a, r2, x, buf []float64
+	ev                            fit.Evaluator
 }
 
 var problemPool = sync.Pool{New: func() any { return new(problemBuffers) }}
@@ -220,6 +221,7 @@ func sized(s []float64, n int) []float64 {
 // its Func must not be used afterwards.
 func (pr problem) release() {
 	if pr.buf != nil {
+		pr.buf.ev.Reset(nil, nil)
 		problemPool.Put(pr.buf)
 	}
 }
@@ -264,49 +266,20 @@ func newProblem(d Data, m model.Model, in []bool) problem {
 	}
 	buf := sized(pb.buf, n)[:n]
 	f := fit.Func{M: n, Lower: lower, Upper: upper}
-	jm, hasJac := m.(model.Jacobianer)
-	// With a one-pass model (model.ValueJacobianer) every evaluation also
-	// keeps ∂α/∂p, which the solver then asks for at the same p (see
-	// fit.Fit): modelAt fills buf and, when it can, jcache at p.
-	vj, onePass := m.(model.ValueJacobianer)
-	onePass = onePass && hasJac
-	var jcache *mat.Dense
-	jcP := make([]float64, k)
-	jcOK := false
-	if onePass {
-		pb.jc = sized(pb.jc, n*k)[:n*k]
-		jcache = mat.NewDense(n, k, pb.jc)
-	}
-	modelAt := func(p []float64) {
-		if !onePass {
-			m.Eval(buf, e, p)
-			return
-		}
-		vj.EvalJacobian(buf, jcache, e, p)
-		copy(jcP, p)
-		jcOK = true
-	}
-	modelJac := func(dst *mat.Dense, p []float64) {
-		if jcOK && floats.Equal(p, jcP) {
-			if raw := dst.RawMatrix(); raw.Stride == k {
-				copy(raw.Data, jcache.RawMatrix().Data) // both contiguous n×k
-			} else {
-				dst.Copy(jcache)
-			}
-			return
-		}
-		jm.Jacobian(dst, e, p)
-	}
+	// The evaluator keeps ∂α/∂p from each evaluation of a one-pass model
+	// for the solver's next Jacobian call at the same p (see fit.Evaluator).
+	ev := &pb.ev
+	ev.Reset(m, e)
 	if !tsp {
 		f.Residuals = func(dst, p []float64) {
-			modelAt(p)
+			ev.Eval(buf, p)
 			for i := range dst {
 				dst[i] = sw[i] * (y[i] - buf[i])
 			}
 		}
-		if hasJac {
+		if ev.HasJacobian() {
 			f.Jacobian = func(dst *mat.Dense, p []float64) {
-				modelJac(dst, p)
+				ev.Jacobian(dst, p)
 				raw := dst.RawMatrix()
 				for i := range n {
 					row := raw.Data[i*raw.Stride : i*raw.Stride+k]
@@ -332,7 +305,7 @@ func newProblem(d Data, m model.Model, in []bool) problem {
 		lastP := make([]float64, k)
 		have := false
 		eval := func(p []float64) {
-			modelAt(p)
+			ev.Eval(buf, p)
 			for i, al := range buf {
 				x[i] = math.Exp(-al * dcm)
 			}
@@ -350,12 +323,12 @@ func newProblem(d Data, m model.Model, in []bool) problem {
 				dst[i] = sw[i] * (y[i] - t)
 			}
 		}
-		if hasJac {
+		if ev.HasJacobian() {
 			f.Jacobian = func(dst *mat.Dense, p []float64) {
 				if !have || !floats.Equal(p, lastP) {
 					eval(p)
 				}
-				modelJac(dst, p)
+				ev.Jacobian(dst, p)
 				raw := dst.RawMatrix()
 				for i := range n {
 					// dT/dα = −d·a x (1 + R²x²)/(1 − R²x²)²
