@@ -38,20 +38,6 @@ const Flags = demo.LotFlags
 // Points is the number of points per scan.
 const Points = 1000
 
-// wafers are the five wafers of the lot: E_g and E_U at the centre and
-// their rise to the edge (eV), as in the demo's lot.
-var wafers = []struct {
-	id              string
-	eg0, egRise     float64
-	eu0, euRise, d0 float64
-}{
-	{"W01", 1.4236, 0.0020, 0.0076, 0.0010, 2.00},
-	{"W02", 1.4242, 0.0024, 0.0079, 0.0012, 1.95},
-	{"W03", 1.4229, 0.0030, 0.0081, 0.0011, 2.05},
-	{"W04", 1.4331, 0.0050, 0.0090, 0.0020, 2.00},
-	{"W05", 1.4238, 0.0018, 0.0077, 0.0009, 1.98},
-}
-
 // Lot is a written lot.
 type Lot struct {
 	// Dir holds the scans; Sheet and Spec are the sample sheet and the
@@ -81,19 +67,20 @@ func Write(dir string, n int, seed uint64) (*Lot, error) {
 	var sheet strings.Builder
 	sheet.WriteString("# Sample sheet of the synthetic lot KM-2611 (fictional Kestrel Moor compound fab; invented data)\n")
 	sheet.WriteString("file,wafer,lot,x_mm,y_mm,thickness_um,thickness_err,temperature_k\n")
+	wafers := demo.LotWafers()
 	per := (n + len(wafers) - 1) / len(wafers)
 	nm := make([]float64, Points)
 	pt := make([]float64, Points)
 	written := 0
 	for _, wt := range wafers {
 		k := min(per, n-written)
-		pos := demo.SitePattern(max(k, 14), 45) // the spiral, also for few sites
+		pos := demo.SitePattern(max(k, 14), demo.SiteRadius) // the spiral, also for few sites
 		for i := range k {
 			p := pos[i]
-			rr := math.Hypot(p[0], p[1]) / 45
-			eg := wt.eg0 + wt.egRise*rr*rr
-			eu := wt.eu0 + wt.euRise*rr*rr
-			d := wt.d0 * (1 - 0.05*rr*rr)
+			rr := math.Hypot(p[0], p[1]) / demo.SiteRadius
+			eg := wt.Eg0 + wt.EgRise*rr*rr
+			eu := wt.Eu0 + wt.EuRise*rr*rr
+			d := wt.Thickness * (1 - 0.05*rr*rr)
 			dSheet := d * (1 + 0.01*rng.NormFloat64())
 			sc := synth.Transmittance(synth.Spec{Model: model.DirectUrbach{}, Params: []float64{eg, c, eu},
 				E: grid, Thickness: d * 1e-4, R: r, SigmaT: 0.002}, rng)
@@ -101,12 +88,12 @@ func Write(dir string, n int, seed uint64) (*Lot, error) {
 				nm[j] = math.Round(10*model.HCeVnm/sc.E[j]) / 10
 				pt[j] = 100 * sc.T[j]
 			}
-			name := fmt.Sprintf("KM2611-%s-s%05d.csv", wt.id, i+1)
+			name := fmt.Sprintf("KM2611-%s-s%05d.csv", wt.ID, i+1)
 			path := filepath.Join(lot.Dir, name)
 			pre := []string{
 				"Kestrel Moor Compound Fab,optical metrology (fictional synthetic data)",
 				"Instrument,KM-DB2 double-beam UV-VIS-NIR",
-				fmt.Sprintf("Sample,%s site %d", wt.id, i+1),
+				fmt.Sprintf("Sample,%s site %d", wt.ID, i+1),
 				"Lot,KM-2611",
 				fmt.Sprintf("Thickness (um),%.2f", dSheet),
 			}
@@ -117,27 +104,15 @@ func Write(dir string, n int, seed uint64) (*Lot, error) {
 				return nil, err
 			}
 			lot.Files = append(lot.Files, path)
-			fmt.Fprintf(&sheet, "%s,%s,KM-2611,%g,%g,%.3f,2%%,296\n", name, wt.id, p[0], p[1], dSheet)
+			fmt.Fprintf(&sheet, "%s,%s,KM-2611,%g,%g,%.3f,2%%,296\n", name, wt.ID, p[0], p[1], dSheet)
 			written++
 		}
 	}
 	if err := atomicfile.WriteBytes(lot.Sheet, []byte(sheet.String())); err != nil {
 		return nil, err
 	}
-	if err := atomicfile.WriteBytes(lot.Spec, []byte(spec)); err != nil {
+	if err := atomicfile.WriteBytes(lot.Spec, []byte(demo.LotSpec)); err != nil {
 		return nil, err
 	}
 	return lot, nil
 }
-
-// spec is the demo lot's spec (cmd/bandedge/demo).
-const spec = `bandedge-spec 1
-name "KM-2611 GaAs epi, release (fictional synthetic lot)"
-guard expanded
-
-limit eg_ev            1.415 .. 1.435
-limit urbach_ev              .. 0.012
-limit chi2_reduced           .. 3
-limit wafer.eg_ev.nonuniformity .. 0.0015
-limit wafer.eg_ev.count    5 ..
-`

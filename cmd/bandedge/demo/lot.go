@@ -45,6 +45,30 @@ type waferTruth struct {
 	description string
 }
 
+// LotSpec is the lot's spec file (bench/scangen writes it too).
+const LotSpec = lotSpec
+
+// LotWafer is how one wafer of the lot was made, for other writers of
+// synthetic lots (bench/scangen): E_g and E_U at the centre and their
+// rise to the edge of the site pattern (eV), and the centre thickness (µm).
+type LotWafer struct {
+	ID                                  string
+	Eg0, EgRise, Eu0, EuRise, Thickness float64
+}
+
+// LotWafers returns the five wafers of the lot.
+func LotWafers() []LotWafer {
+	out := make([]LotWafer, len(lotWafers))
+	for i, w := range lotWafers {
+		out[i] = LotWafer{w.id, w.eg0, w.egRise, w.eu0, w.euRise, w.thicknessUM}
+	}
+	return out
+}
+
+// SiteRadius is the largest site radius of the lot's wafers in mm (5 mm
+// edge exclusion).
+const SiteRadius = siteRadius
+
 var lotWafers = []waferTruth{
 	{"W01", 1.4236, 0.0020, 0.0076, 0.0010, 2.00, "in spec"},
 	{"W02", 1.4242, 0.0024, 0.0079, 0.0012, 1.95, "in spec"},
