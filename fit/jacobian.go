@@ -1,6 +1,10 @@
 package fit
 
-import "math"
+import (
+	"math"
+
+	"gonum.org/v1/gonum/mat"
+)
 
 // cbrtEpsilon is ε^⅓ for float64, the step factor that balances the O(h²)
 // truncation error of a central difference against its O(ε/h) rounding
@@ -106,4 +110,29 @@ func (w *work) fdColumn(j int, xj float64, c, d []float64, scale float64, fx []f
 		col[i] = scale * s
 	}
 	return true
+}
+
+// JacobianAt returns the Jacobian ∂r_i/∂p_j of f at p, m × len(p), as
+// LeastSquares forms it: f.Jacobian when f has one, else the engine's
+// finite differences (central, scaled to each parameter, one-sided at a
+// bound of f). ok is false when a residual at p or an entry is not finite.
+// Callers that need J at an estimate (a bias or degeneracy analysis after
+// the fit) use it rather than differencing f themselves.
+func JacobianAt(f Func, p []float64) (j *mat.Dense, ok bool) {
+	w := getWork(f.M, len(p))
+	defer putWork(w)
+	w.init(f, p, nil)
+	if _, ok := w.eval(w.f0, p); !ok {
+		return nil, false
+	}
+	if !w.jacobian(p, w.f0) {
+		return nil, false
+	}
+	j = mat.NewDense(f.M, len(p), nil)
+	for c := range len(p) {
+		for i, v := range w.jtCol(c) {
+			j.Set(i, c, v)
+		}
+	}
+	return j, true
 }

@@ -109,40 +109,13 @@ func predictedBias(pr problem, fr *fit.Result, j *mat.Dense) []float64 {
 	return b
 }
 
-// residualJacobian returns ∂r/∂p of the problem at p (analytic, or
-// central differences), or nil when an entry is not finite.
+// residualJacobian returns ∂r/∂p of the problem at p (analytic, or the
+// engine's finite differences; fit.JacobianAt), or nil when an entry is
+// not finite.
 func residualJacobian(pr problem, p []float64) *mat.Dense {
-	j := mat.NewDense(pr.f.M, len(p), nil)
-	if pr.f.Jacobian != nil {
-		pr.f.Jacobian(j, p)
-	} else {
-		centralJacobian(j, pr.f, p)
-	}
-	for _, v := range j.RawMatrix().Data {
-		if !isFinite(v) {
-			return nil
-		}
+	j, ok := fit.JacobianAt(pr.f, p)
+	if !ok {
+		return nil
 	}
 	return j
-}
-
-// centralJacobian fills j with central differences of f at p, step
-// ε^⅓·max(|p_j|, 1e-8) per parameter (for models without an analytic
-// Jacobian; the engine's own differences are not exported).
-func centralJacobian(j *mat.Dense, f fit.Func, p []float64) {
-	m, k := j.Dims()
-	x := append([]float64(nil), p...)
-	fp := make([]float64, m)
-	fm := make([]float64, m)
-	for c := range k {
-		hc := 6e-6 * math.Max(math.Abs(p[c]), 1e-8)
-		x[c] = p[c] + hc
-		f.Residuals(fp, x)
-		x[c] = p[c] - hc
-		f.Residuals(fm, x)
-		x[c] = p[c]
-		for i := range m {
-			j.Set(i, c, (fp[i]-fm[i])/(2*hc))
-		}
-	}
 }
